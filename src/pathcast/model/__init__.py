@@ -1,0 +1,1 @@
+"""The pathway LP: one module per constraint family, assembled in arrays, then as a Pyomo model."""

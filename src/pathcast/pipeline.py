@@ -1,0 +1,168 @@
+"""Orchestration: scenario file -> inputs -> LP -> Pyomo -> HiGHS -> RunResult, with stage times.
+
+Compute only: nothing here prints or writes files (the CLI and writers do)."""
+
+from __future__ import annotations
+
+import platform
+import time
+from collections.abc import Callable
+from dataclasses import dataclass, field, replace
+from importlib import metadata as importlib_metadata
+from pathlib import Path
+
+import numpy as np
+
+from .errors import InfeasibleError, SolverError
+from .model.build import PathwayModel, build_linear_program
+from .model.pyomo_model import to_pyomo
+from .results.extract import extract_tables, headline_figures
+from .results.run_result import RunResult
+from .scenario.inputs import ModelInputs, prepare_inputs
+from .scenario.loader import LoadedScenario, load_scenario
+from .solve import Solution, SolverOptions, solve_highs
+
+__all__ = ["run_scenario", "solve_inputs", "StageTimes", "Run", "solver_options_from", "package_versions"]
+
+Progress = Callable[[str], None]
+
+
+@dataclass
+class StageTimes:
+    """Seconds spent in each stage of one run."""
+
+    load_s: float = 0.0
+    build_lp_s: float = 0.0
+    build_pyomo_s: float = 0.0
+    handoff_s: float = 0.0
+    solve_s: float = 0.0
+    extract_s: float = 0.0
+
+    @property
+    def total_s(self) -> float:
+        return self.load_s + self.build_lp_s + self.build_pyomo_s + self.handoff_s + self.solve_s + self.extract_s
+
+    def as_dict(self) -> dict[str, float]:
+        out = {k: round(v, 4) for k, v in self.__dict__.items()}
+        out["total_s"] = round(self.total_s, 4)
+        return out
+
+
+@dataclass
+class Run:
+    """A finished run: the result plus what produced it (kept for analytics that re-solve)."""
+
+    result: RunResult
+    model: PathwayModel = field(repr=False)
+    solution: Solution = field(repr=False)
+    times: StageTimes
+
+
+def package_versions() -> dict[str, str]:
+    out = {"python": platform.python_version()}
+    for name in ("pathcast", "pyomo", "highspy", "numpy", "pandas", "scipy", "pydantic", "pint", "matplotlib"):
+        try:
+            out[name] = importlib_metadata.version(name)
+        except importlib_metadata.PackageNotFoundError:
+            out[name] = "not installed"
+    return out
+
+
+def solver_options_from(inputs: ModelInputs, override: dict | None = None) -> SolverOptions:
+    settings = dict(inputs.solver)
+    for key, value in (override or {}).items():
+        if value is not None:
+            settings[key] = value
+    return SolverOptions(method=settings.get("method", "auto"), time_limit_s=settings.get("time_limit_s"),
+                         threads=settings.get("threads"), options=dict(settings.get("options") or {}),
+                         log=bool(settings.get("log", False)))
+
+
+def solve_inputs(inputs: ModelInputs, *, solver: dict | None = None, progress: Progress | None = None,
+                 times: StageTimes | None = None, input_hash: str = "", source: str = "",
+                 metadata: dict | None = None, require_optimal: bool = True) -> Run:
+    """Build and solve the model of ``inputs``; raise InfeasibleError or SolverError unless it solves to optimality."""
+    say = progress or (lambda _message: None)
+    times = times or StageTimes()
+    started = time.perf_counter()
+    say("building the linear program")
+    model = build_linear_program(inputs)
+    matrix, _, _ = model.lp.matrix()
+    times.build_lp_s = time.perf_counter() - started
+    started = time.perf_counter()
+    say(f"building the Pyomo model ({matrix.shape[0]:,} rows, {matrix.shape[1]:,} columns, {matrix.nnz:,} nonzeros)")
+    handles = to_pyomo(model.lp)
+    times.build_pyomo_s = time.perf_counter() - started
+    options = solver_options_from(inputs, solver)
+    say("solving with HiGHS")
+    solution = solve_highs(handles, matrix.shape[0], matrix.shape[1], options)
+    times.handoff_s = solution.handoff_s
+    times.solve_s = solution.solve_s
+    if solution.status != "optimal" and require_optimal:
+        if solution.status in ("infeasible", "unbounded_or_infeasible"):
+            raise InfeasibleError(
+                f"scenario {inputs.name!r}: HiGHS reports the model {solution.status.replace('_', ' ')}: the carbon "
+                "budget, caps, clean-electricity share, minimum builds and phase-outs cannot all be met together.",
+                diagnosis={"status": solution.status})
+        raise SolverError(f"scenario {inputs.name!r}: HiGHS stopped with status {solution.status!r} after "
+                          f"{solution.solve_s:.1f} s; try another solver method (--method) or a longer time limit.")
+    started = time.perf_counter()
+    say("reading results")
+    tables = extract_tables(model, solution)
+    summary = headline_figures(model, solution, tables)
+    times.extract_s = time.perf_counter() - started
+    highs = solution.highs
+    info = highs.getInfo() if highs is not None else None
+    manifest = {
+        "scenario": inputs.name,
+        "source": source,
+        "input_hash": input_hash,
+        "versions": package_versions(),
+        "solver": {
+            "name": "HiGHS", "status": solution.status, "method": solution.method, "options": solution.options,
+            "objective_million": solution.objective, "iterations": solution.iterations,
+            "primal_infeasibility": float(info.max_primal_infeasibility) if info else None,
+            "dual_infeasibility": float(info.max_dual_infeasibility) if info else None,
+        },
+        "lp": {"rows": solution.rows, "columns": solution.columns, "nonzeros": solution.nonzeros,
+               "coefficient_range": coefficient_ranges(matrix)},
+        "stage_times_s": times.as_dict(),
+    }
+    result = RunResult.create(inputs.name, tables, summary, manifest, metadata or {"currency": inputs.currency,
+                                                                                    "price_year": inputs.price_year})
+    return Run(result=result, model=model, solution=solution, times=times)
+
+
+def coefficient_ranges(matrix) -> dict[str, float]:
+    data = np.abs(matrix.data)
+    data = data[data > 0]
+    if not len(data):
+        return {"min": 0.0, "max": 0.0}
+    return {"min": float(data.min()), "max": float(data.max())}
+
+
+def run_scenario(scenario: str | Path | LoadedScenario, *, solver: dict | None = None,
+                 progress: Progress | None = None, inputs_hook: Callable[[ModelInputs], ModelInputs] | None = None) -> Run:
+    """Load (unless given loaded), validate, build and solve one scenario."""
+    say = progress or (lambda _message: None)
+    times = StageTimes()
+    started = time.perf_counter()
+    if isinstance(scenario, LoadedScenario):
+        loaded = scenario
+    else:
+        say(f"reading {scenario}")
+        loaded = load_scenario(scenario)
+    inputs = prepare_inputs(loaded.scenario)
+    if inputs_hook is not None:
+        inputs = inputs_hook(inputs)
+    times.load_s = time.perf_counter() - started
+    meta = loaded.scenario.metadata
+    metadata = meta.model_dump()
+    metadata["files"] = [str(p) for p in loaded.files]
+    return solve_inputs(inputs, solver=solver, progress=progress, times=times, input_hash=loaded.input_hash,
+                        source=str(loaded.path), metadata=metadata)
+
+
+def with_changes(inputs: ModelInputs, **changes) -> ModelInputs:
+    """A copy of ``inputs`` with fields replaced (used by analytics that re-solve variants)."""
+    return replace(inputs, **changes)

@@ -1,0 +1,1 @@
+"""Renderers: console tables, figures and the planning memo. They read only RunResult objects."""

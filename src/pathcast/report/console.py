@@ -1,0 +1,50 @@
+"""Plain-text renderings of a RunResult for the terminal."""
+
+from __future__ import annotations
+
+from ..results.run_result import RunResult
+
+__all__ = ["render_summary", "render_profile", "CAUTION"]
+
+CAUTION = ("pathcast is a screening-level planning model: its results depend on its inputs, and decisions defer to "
+           "regulators, grid codes and licensed engineering studies.")
+
+
+def render_summary(result: RunResult) -> str:
+    s = result.summary
+    currency = s.get("currency", "")
+    lines = [f"Scenario {s['scenario']!r}, {s['base_year']}-{s['final_year']} ({currency} of {s.get('price_year')})", ""]
+    lines.append(f"  total discounted system cost   {s['total_discounted_cost_million']:>14,.0f} million {currency}")
+    budget = s.get("carbon_budget_mtco2")
+    lines.append(f"  cumulative CO2                 {s['cumulative_emissions_mtco2']:>14,.1f} MtCO2")
+    if budget is not None:
+        verdict = "within" if s.get("within_budget") else "OVER"
+        lines.append(f"  carbon budget {s['budget_first_year']}-{s['budget_last_year']}       {budget:>14,.1f} MtCO2 ({verdict} budget)")
+    lines.append(f"  CO2 in {s['base_year']} / {s['final_year']}            {s['first_year_emissions_mtco2']:>8,.1f} / {s['final_year_emissions_mtco2']:,.1f} MtCO2/yr")
+    if s.get("unserved_electricity_twh", 0) > 1e-6 or s.get("unserved_fuel_pj", 0) > 1e-6:
+        lines.append(f"  UNSERVED: electricity {s['unserved_electricity_twh']:,.3f} TWh, fuels {s['unserved_fuel_pj']:,.3f} PJ over the horizon")
+    lines.append("")
+    lines.append(f"  capacity in {s['final_year']} [MW]")
+    mix = {k: v for k, v in s["final_year_capacity_mw"].items() if abs(v) > 0.5}
+    for name, mw in sorted(mix.items(), key=lambda kv: -kv[1]):
+        lines.append(f"    {name:<28}{mw:>12,.0f}")
+    lines.append("")
+    lines.append(f"  {CAUTION}")
+    return "\n".join(lines)
+
+
+def render_profile(result: RunResult) -> str:
+    m = result.manifest
+    times = m.get("stage_times_s", {})
+    lp = m.get("lp", {})
+    lines = ["Stage times [s]"]
+    for key in ("load_s", "build_lp_s", "build_pyomo_s", "handoff_s", "solve_s", "extract_s", "total_s"):
+        if key in times:
+            lines.append(f"  {key[:-2].replace('_', ' '):<16}{times[key]:>10.3f}")
+    rows = lp.get("rows", 0) or 1
+    overhead = times.get("build_lp_s", 0) + times.get("build_pyomo_s", 0) + times.get("handoff_s", 0) + times.get("extract_s", 0)
+    lines.append(f"LP: {lp.get('rows', 0):,} rows, {lp.get('columns', 0):,} columns, {lp.get('nonzeros', 0):,} nonzeros; "
+                 f"coefficients {lp.get('coefficient_range', {}).get('min', 0):.3g} to {lp.get('coefficient_range', {}).get('max', 0):.3g}")
+    lines.append(f"modelling overhead {overhead * 1e6 / rows:.1f} us per row; solver method {m.get('solver', {}).get('method')} "
+                 f"options {m.get('solver', {}).get('options')}")
+    return "\n".join(lines)

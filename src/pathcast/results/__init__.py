@@ -1,0 +1,1 @@
+"""The frozen RunResult, its extraction from a solved model, analytics and writers."""

@@ -1,0 +1,1 @@
+"""Scenario files: YAML + CSV reading, ``extends`` merging, units, validation, numeric inputs."""

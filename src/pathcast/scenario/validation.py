@@ -1,0 +1,171 @@
+"""Checks across fields that the schema alone cannot make: names that refer to each other, profile lengths, day
+weights, years inside the horizon, and whether every demanded commodity can be supplied through some chain of
+technologies (reachability on the commodity graph)."""
+
+from __future__ import annotations
+
+from typing import TYPE_CHECKING
+
+import networkx as nx
+
+from ..errors import did_you_mean
+from .schema import ELECTRICITY, Scenario
+
+if TYPE_CHECKING:
+    from .loader import LoadedScenario
+
+__all__ = ["check_scenario", "commodity_graph", "HOURS_PER_DAY", "DAYS_PER_YEAR"]
+
+HOURS_PER_DAY = 24
+DAYS_PER_YEAR = 365.0
+SOURCE = "(primary supply)"
+
+
+def check_scenario(loaded: LoadedScenario) -> None:
+    """Raise ScenarioError for the first problem found, located to its file and field."""
+    from .loader import located_error
+
+    s = loaded.scenario
+
+    def fail(path: tuple, value, expected: str):
+        raise located_error(loaded.file_of(path), path, value, expected)
+
+    meta = s.metadata
+    # --- time structure -------------------------------------------------------------------------------------
+    days = s.time.representative_days
+    names = [d.name for d in days]
+    if len(set(names)) != len(names):
+        duplicate = next(n for n in names if names.count(n) > 1)
+        fail(("time", "representative_days"), duplicate, "each representative day named once")
+    total_weight = sum(d.weight_days for d in days)
+    if abs(total_weight - DAYS_PER_YEAR) > 1e-6:
+        fail(("time", "representative_days", "weight_days"), round(total_weight, 6), "day weights that sum to 365 days")
+    profiles = set(days[0].availability)
+    for i, day in enumerate(days):
+        where = ("time", "representative_days", i)
+        if len(day.demand_shape) != HOURS_PER_DAY:
+            fail(where + ("demand_shape",), f"{len(day.demand_shape)} values", f"{HOURS_PER_DAY} hourly values for day {day.name!r}")
+        if min(day.demand_shape) < 0 or max(day.demand_shape) <= 0:
+            fail(where + ("demand_shape",), min(day.demand_shape), "non-negative demand values, not all zero")
+        if set(day.availability) != profiles:
+            fail(where + ("availability",), sorted(day.availability), f"the same profiles on every day: {sorted(profiles)}")
+        for profile, values in day.availability.items():
+            if len(values) != HOURS_PER_DAY:
+                fail(where + ("availability", profile), f"{len(values)} values", f"{HOURS_PER_DAY} hourly values")
+            bad = [v for v in values if not 0 <= v <= 1]
+            if bad:
+                fail(where + ("availability", profile), bad[0], "availability factors between 0 and 1")
+
+    commodities = set(s.commodities)
+    if ELECTRICITY in commodities:
+        fail(("commodities", ELECTRICITY), ELECTRICITY, "fuels only: electricity is built in and balanced hourly")
+    all_commodities = sorted(commodities | {ELECTRICITY})
+
+    def known_commodity(path: tuple, name: str | None, allow_electricity: bool) -> None:
+        pool = all_commodities if allow_electricity else sorted(commodities)
+        if name not in pool:
+            fail(path, name, f"one of the commodities {pool}{did_you_mean(str(name), pool)}")
+
+    # --- technologies -----------------------------------------------------------------------------------------
+    tech = s.technologies
+    seen: dict[str, str] = {}
+    for kind, group in (("generators", tech.generators), ("storage", tech.storage), ("converters", tech.converters), ("supplies", tech.supplies)):
+        for name in group:
+            if name in seen:
+                fail(("technologies", kind, name), name, f"a name not already used in technologies.{seen[name]}")
+            seen[name] = kind
+    years = (meta.base_year, meta.final_year)
+    for name, g in tech.generators.items():
+        path = ("technologies", "generators", name)
+        if g.fuel is not None:
+            known_commodity(path + ("fuel",), g.fuel, allow_electricity=False)
+        if isinstance(g.availability, str):
+            try:
+                value = float(g.availability)
+            except ValueError:
+                value = None
+            if value is None and g.availability not in profiles:
+                fail(path + ("availability",), g.availability,
+                     f"a number between 0 and 1 or one of the profiles {sorted(profiles)}{did_you_mean(g.availability, profiles)}")
+            if value is not None and not 0 <= value <= 1:
+                fail(path + ("availability",), value, "a number between 0 and 1")
+    for name, c in tech.converters.items():
+        path = ("technologies", "converters", name)
+        known_commodity(path + ("input",), c.input, allow_electricity=True)
+        known_commodity(path + ("output",), c.output, allow_electricity=False)
+        if c.input == c.output:
+            fail(path + ("output",), c.output, "an output other than the input")
+    for name, sup in tech.supplies.items():
+        known_commodity(("technologies", "supplies", name, "output"), sup.output, allow_electricity=False)
+    for kind, group in (("generators", tech.generators), ("storage", tech.storage), ("converters", tech.converters)):
+        for name, t in group.items():
+            path = ("technologies", kind, name)
+            if t.max_build_mw_per_year is not None and t.max_build_mw_per_year < t.min_build_mw_per_year:
+                fail(path + ("max_build_mw_per_year",), t.max_build_mw_per_year, f"at least min_build_mw_per_year ({t.min_build_mw_per_year!r})")
+            if t.phase_out_year is not None and t.min_build_mw_per_year > 0:
+                fail(path + ("min_build_mw_per_year",), t.min_build_mw_per_year, "0 for a technology with a phase-out year")
+            for i, e in enumerate(t.existing):
+                if e.retirement_year <= meta.base_year - 100:
+                    fail(path + ("existing", i, "retirement_year"), e.retirement_year, "a plausible retirement year")
+            if t.capex.cumulative_deployment is not None and isinstance(t.capex.cumulative_deployment, dict):
+                if min(t.capex.cumulative_deployment.values()) <= 0:
+                    fail(path + ("capex", "cumulative_deployment"), min(t.capex.cumulative_deployment.values()), "cumulative deployment above 0 GW")
+    for name, st in tech.storage.items():
+        if st.max_duration_hours is not None and st.max_duration_hours < st.min_duration_hours:
+            fail(("technologies", "storage", name, "max_duration_hours"), st.max_duration_hours, "at least min_duration_hours")
+
+    # --- demand ----------------------------------------------------------------------------------------------------
+    for name, fd in s.demand.fuels.items():
+        for i, c in enumerate(fd.served_by):
+            known_commodity(("demand", "fuels", name, "served_by", i), c, allow_electricity=False)
+
+    # --- policy ----------------------------------------------------------------------------------------------------
+    pol = s.policy
+    if pol.carbon_budget is not None:
+        first = pol.carbon_budget.first_year or meta.base_year
+        last = pol.carbon_budget.last_year or meta.final_year
+        for field_name, year in (("first_year", first), ("last_year", last)):
+            if not years[0] <= year <= years[1]:
+                fail(("policy", "carbon_budget", field_name), year, f"a year from {years[0]} to {years[1]}")
+        if last < first:
+            fail(("policy", "carbon_budget", "last_year"), last, f"a year not before first_year {first}")
+    for year in pol.emission_caps_mt:
+        if not years[0] <= year <= years[1]:
+            fail(("policy", "emission_caps_mt", year), year, f"a year from {years[0]} to {years[1]}")
+    if isinstance(pol.clean_electricity_share, dict):
+        for year, share in pol.clean_electricity_share.items():
+            if not 0 <= share <= 1:
+                fail(("policy", "clean_electricity_share", year), share, "a share between 0 and 1")
+    elif pol.clean_electricity_share is not None and not 0 <= pol.clean_electricity_share <= 1:
+        fail(("policy", "clean_electricity_share"), pol.clean_electricity_share, "a share between 0 and 1")
+
+    if pol.reserve_margin > 0:
+        credited = [g.capacity_credit for g in tech.generators.values() if g.capacity_credit is None or g.capacity_credit > 0]
+        credited += [st.capacity_credit for st in tech.storage.values() if st.capacity_credit > 0]
+        if not credited:
+            fail(("policy", "reserve_margin"), pol.reserve_margin,
+                 "0, or some generator or storage with a capacity_credit above 0 to meet it")
+
+    # --- reachability ----------------------------------------------------------------------------------------------
+    graph = commodity_graph(s)
+    reachable = nx.descendants(graph, SOURCE)
+    if ELECTRICITY not in reachable:
+        fail(("demand", "electricity"), ELECTRICITY,
+             "a chain of technologies that can supply electricity (no generator has a fuel that some supply or converter provides)")
+    for name, fd in s.demand.fuels.items():
+        if not any(c in reachable for c in fd.served_by):
+            fail(("demand", "fuels", name, "served_by"), fd.served_by,
+                 "at least one commodity that some chain of supplies and converters can provide")
+
+
+def commodity_graph(s: Scenario) -> nx.DiGraph:
+    """Directed graph: primary supply -> commodity -> ... -> electricity, one edge per technology."""
+    graph = nx.DiGraph()
+    graph.add_node(SOURCE)
+    for name, sup in s.technologies.supplies.items():
+        graph.add_edge(SOURCE, sup.output, technology=name)
+    for name, g in s.technologies.generators.items():
+        graph.add_edge(g.fuel if g.fuel else SOURCE, ELECTRICITY, technology=name)
+    for name, c in s.technologies.converters.items():
+        graph.add_edge(c.input, c.output, technology=name)
+    return graph

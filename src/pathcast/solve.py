@@ -1,0 +1,175 @@
+"""Hand the Pyomo model to HiGHS in memory (Pyomo's standard-form compiler -> ``highspy.HighsLp``), solve, and read
+the primal values and row duals back in the LP's own column and row order.
+
+Duals follow the usual sign convention of a minimisation: a binding ``<=`` row has a dual <= 0, a binding ``>=`` row
+a dual >= 0. They are the change of the total discounted cost [million currency] per unit of the row's right-hand side.
+"""
+
+from __future__ import annotations
+
+import math
+import time
+from dataclasses import dataclass, field
+
+import highspy
+import numpy as np
+from pyomo.repn.plugins.standard_form import LinearStandardFormCompiler
+
+from .errors import SolverError
+from .model.pyomo_model import PyomoHandles
+
+__all__ = ["SolverOptions", "Solution", "handoff", "solve_highs", "highs_options_for", "new_highs", "METHODS"]
+
+METHODS = ("auto", "simplex", "ipm", "ipm-crossover", "pdlp")
+
+
+@dataclass(frozen=True)
+class SolverOptions:
+    method: str = "auto"
+    time_limit_s: float | None = None
+    threads: int | None = None
+    options: dict = field(default_factory=dict)
+    log: bool = False
+
+
+@dataclass
+class Solution:
+    status: str  # "optimal", "infeasible", "unbounded", "time_limit", "error: ..."
+    objective: float  # [million currency], discounted
+    x: np.ndarray  # primal values, LP column order
+    row_dual: np.ndarray  # LP row order
+    method: str
+    options: dict
+    handoff_s: float
+    solve_s: float
+    rows: int
+    columns: int
+    nonzeros: int
+    iterations: dict
+    highs: object = field(repr=False, default=None)
+
+
+def highs_options_for(method: str, n_rows: int) -> dict:
+    """HiGHS options for a method. ``auto``: dual simplex below 20 000 rows, interior point with crossover above
+    (crossover keeps a basic solution, so duals and prices are those of a vertex). Chosen from the measurements in
+    benchmarks/RESULTS.md."""
+    if method == "auto":
+        method = "simplex" if n_rows < 20_000 else "ipm-crossover"
+    if method == "simplex":
+        return {"solver": "simplex", "simplex_strategy": 1}
+    if method == "ipm":
+        return {"solver": "ipm", "run_crossover": "off"}
+    if method == "ipm-crossover":
+        return {"solver": "ipm", "run_crossover": "on"}
+    if method == "pdlp":
+        return {"solver": "pdlp"}
+    raise SolverError(f"solver method {method!r} is not one of {list(METHODS)}.")
+
+
+def handoff(handles: PyomoHandles, n_rows: int, n_cols: int):
+    """Compile the Pyomo model to standard form and fill a HighsLp; return it with the row and column maps."""
+    compiled = LinearStandardFormCompiler().write(handles.model, mixed_form=True, column_order=handles.variables,
+                                                  row_order=handles.constraints)
+    position = {id(v): i for i, v in enumerate(handles.variables)}
+    col_map = np.fromiter((position[id(v)] for v in compiled.columns), dtype=np.int64, count=len(compiled.columns))
+    row_position = {id(c): i for i, c in enumerate(handles.constraints)}
+    row_map = np.fromiter((row_position[id(c)] for c, _ in compiled.rows), dtype=np.int64, count=len(compiled.rows))
+    senses = np.fromiter((s for _, s in compiled.rows), dtype=np.int64, count=len(compiled.rows))
+
+    # mixed form: sense 1 is "<= rhs", 0 is "== rhs", -1 is ">= rhs" (coefficients as written)
+    A = compiled.A.tocsc()
+    rhs = np.asarray(compiled.rhs, dtype=float)
+    lower = np.where(senses <= 0, rhs, -math.inf)
+    upper = np.where(senses >= 0, rhs, math.inf)
+
+    lp = highspy.HighsLp()
+    lp.num_col_ = len(compiled.columns)
+    lp.num_row_ = len(compiled.rows)
+    cost = np.asarray(compiled.c.todense()).ravel() if compiled.c.shape[0] else np.zeros(lp.num_col_)
+    lp.col_cost_ = cost
+    lb = np.array([(-math.inf if v.lb is None else v.lb) for v in compiled.columns], dtype=float)
+    ub = np.array([(math.inf if v.ub is None else v.ub) for v in compiled.columns], dtype=float)
+    lp.col_lower_ = lb
+    lp.col_upper_ = ub
+    lp.row_lower_ = lower
+    lp.row_upper_ = upper
+    lp.a_matrix_.format_ = highspy.MatrixFormat.kColwise
+    lp.a_matrix_.start_ = A.indptr
+    lp.a_matrix_.index_ = A.indices
+    lp.a_matrix_.value_ = A.data
+    lp.offset_ = float(compiled.c_offset[0]) if len(compiled.c_offset) else 0.0
+    return lp, col_map, row_map
+
+
+def solve_highs(handles: PyomoHandles, n_rows: int, n_cols: int, options: SolverOptions) -> Solution:
+    started = time.perf_counter()
+    lp, col_map, row_map = handoff(handles, n_rows, n_cols)
+    h = new_highs(log=options.log)
+    highs_opts = highs_options_for(options.method, lp.num_row_)
+    if options.time_limit_s:
+        highs_opts["time_limit"] = float(options.time_limit_s)
+    if options.threads:
+        highs_opts["threads"] = int(options.threads)
+    highs_opts.update(options.options)
+    for key, value in highs_opts.items():
+        status = h.setOptionValue(key, value)
+        if status == highspy.HighsStatus.kError:
+            raise SolverError(f"HiGHS option {key!r} = {value!r} was refused; see the HiGHS option list.")
+    h.passModel(lp)
+    handoff_s = time.perf_counter() - started
+    started = time.perf_counter()
+    h.run()
+    solve_s = time.perf_counter() - started
+    model_status = h.getModelStatus()
+    status = _status_name(model_status)
+    info = h.getInfo()
+    iterations = {"simplex": int(info.simplex_iteration_count), "ipm": int(info.ipm_iteration_count),
+                  "crossover": int(info.crossover_iteration_count)}
+    x = np.zeros(n_cols)
+    duals = np.zeros(n_rows)
+    objective = math.nan
+    if status == "optimal":
+        sol = h.getSolution()
+        x[col_map] = np.asarray(sol.col_value)
+        if sol.dual_valid:
+            duals[row_map] = np.asarray(sol.row_dual)
+        objective = float(info.objective_function_value)
+    return Solution(status=status, objective=objective, x=x, row_dual=duals, method=options.method, options=highs_opts,
+                    handoff_s=handoff_s, solve_s=solve_s, rows=lp.num_row_, columns=lp.num_col_,
+                    nonzeros=len(lp.a_matrix_.value_), iterations=iterations, highs=h)
+
+
+def new_highs(log: bool = False) -> highspy.Highs:
+    """A HiGHS instance; its start-up banner (printed from C++ to standard output) is kept off the screen unless
+    ``log`` is asked for."""
+    if log:
+        return highspy.Highs()
+    import os
+    import sys
+
+    sys.stdout.flush()
+    saved = os.dup(1)
+    try:
+        with open(os.devnull, "w") as null:
+            os.dup2(null.fileno(), 1)
+            h = highspy.Highs()
+            h.setOptionValue("output_flag", False)
+    finally:
+        os.dup2(saved, 1)
+        os.close(saved)
+    return h
+
+
+def _status_name(status) -> str:
+    MS = highspy.HighsModelStatus
+    if status == MS.kOptimal:
+        return "optimal"
+    if status in (MS.kInfeasible,):
+        return "infeasible"
+    if status in (MS.kUnbounded, MS.kUnboundedOrInfeasible):
+        return "unbounded_or_infeasible"
+    if status == MS.kTimeLimit:
+        return "time_limit"
+    if status == MS.kIterationLimit:
+        return "iteration_limit"
+    return f"error: {status}"
