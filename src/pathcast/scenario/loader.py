@@ -19,7 +19,8 @@ from pydantic import BaseModel, ValidationError
 from ..errors import ScenarioError, did_you_mean
 from .schema import Scenario
 
-__all__ = ["load_scenario", "LoadedScenario", "located_error", "read_yaml_with_extends"]
+__all__ = ["load_scenario", "LoadedScenario", "located_error", "read_yaml_with_extends", "read_scenario_mapping",
+           "load_scenario_mapping"]
 
 Provenance = dict[tuple, Path]
 
@@ -288,3 +289,34 @@ def _inner(annotation: Any) -> Any:
     if origin is list and args:
         return args[0]
     return None
+
+
+# ---------------------------------------------------------------------------------------------------------------
+# Raw-mapping helpers for callers that change a scenario's fields before validating it (the ensemble runner):
+# the same reading and validation steps as load_scenario, split in two.
+
+
+def read_scenario_mapping(path: str | Path) -> tuple[dict[str, Any], Provenance, tuple[Path, ...]]:
+    """The merged raw mapping of a scenario file (``extends`` applied, CSV tables read), the file that set each field
+    and the chain of files; nothing validated yet."""
+    path = Path(path)
+    raw, provenance, files = read_yaml_with_extends(path)
+    return _resolve_csv(raw, (), provenance, path.resolve()), provenance, files
+
+
+def load_scenario_mapping(raw: dict[str, Any], path: str | Path, *, provenance: Provenance | None = None,
+                          files: tuple[Path, ...] = ()) -> LoadedScenario:
+    """Validate a merged, CSV-resolved raw mapping as :func:`load_scenario` does; ``path`` is the file named in errors
+    (and, with ``provenance``, the default owner of fields the provenance does not know)."""
+    from .validation import check_scenario
+
+    path = Path(path).resolve()
+    provenance = provenance or {}
+    currency = raw.get("metadata", {}).get("currency", "USD") if isinstance(raw.get("metadata"), dict) else "USD"
+    try:
+        scenario = Scenario.model_validate(raw, context={"currency": currency})
+    except ValidationError as error:
+        raise _explain(error, raw, provenance, path) from None
+    loaded = LoadedScenario(scenario=scenario, path=path, files=files or (path,), raw=raw, provenance=provenance)
+    check_scenario(loaded)
+    return loaded
