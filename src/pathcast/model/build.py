@@ -4,6 +4,8 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
+import numpy as np
+
 from ..scenario.inputs import ModelInputs
 from .capacity import add_capacity
 from .context import BuildContext
@@ -14,7 +16,7 @@ from .linear_program import LinearProgram
 from .policy import add_policy
 from .storage import add_storage
 
-__all__ = ["PathwayModel", "build_linear_program"]
+__all__ = ["PathwayModel", "build_linear_program", "apply_column_bounds"]
 
 
 @dataclass
@@ -42,4 +44,19 @@ def build_linear_program(inputs: ModelInputs) -> PathwayModel:
     add_electricity_balance(ctx)
     add_emissions(ctx)
     add_policy(ctx)
+    apply_column_bounds(ctx.lp, inputs.column_bounds)
     return PathwayModel(ctx)
+
+
+def apply_column_bounds(lp: LinearProgram, bounds: dict[str, tuple[np.ndarray, np.ndarray]]) -> None:
+    """Tighten column bounds by block name (``ModelInputs.column_bounds``): NaN keeps the model's own bound; given
+    values are clipped into the model's own bounds, so fixing a column to a solved value never makes it infeasible."""
+    for name, (lower, upper) in bounds.items():
+        if name not in lp.variables:
+            raise ValueError(f"column_bounds: {name!r} is not a variable block; expected one of {sorted(lp.variables)}")
+        block = lp.variables[name]
+        lo = np.broadcast_to(np.asarray(lower, dtype=float), block.shape).ravel()
+        hi = np.broadcast_to(np.asarray(upper, dtype=float), block.shape).ravel()
+        new_lower = np.where(np.isnan(lo), block.lower, np.clip(lo, block.lower, block.upper))
+        block.upper = np.where(np.isnan(hi), block.upper, np.clip(hi, new_lower, block.upper))
+        block.lower = new_lower

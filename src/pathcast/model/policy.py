@@ -20,6 +20,14 @@ def add_policy(ctx: BuildContext) -> None:
         inside = (years >= first) & (years <= last)
         rows = lp.add_rows("carbon_budget", ("budget",), (1,), "<=", "MtCO2", rhs=inputs.budget_mt)
         rows.add(np.zeros(int(inside.sum()), dtype=int), emissions[inside], 1.0)
+        if inputs.budget_overshoot_price is not None:
+            # priced overshoot [MtCO2] relaxes the budget; it is paid in the budget's last modelled year, so the budget's
+            # carbon price in that year is at most the overshoot price [currency/tCO2 = million/MtCO2]
+            overshoot = lp.add_variables("budget_overshoot", ("budget",), (1,), "MtCO2")
+            ctx.blocks["budget_overshoot"] = overshoot
+            rows.add(np.zeros(1, dtype=int), overshoot.all(), -1.0)
+            paid = int(np.flatnonzero(inside)[-1]) if inside.any() else Y - 1
+            lp.add_cost(overshoot.all(), inputs.budget_overshoot_price * ctx.discount[paid])
 
     if inputs.emission_caps_mt:
         cap_years = sorted(inputs.emission_caps_mt)

@@ -130,6 +130,13 @@ class ModelInputs:
     carbon_price: np.ndarray  # [currency/tCO2] by year
     clean_share: np.ndarray | None  # [-] by year, NaN where no target
     solver: dict = field(default_factory=dict)
+    # Analysis overrides, empty by default (set with dataclasses.replace by pathcast.analysis, never by a scenario file):
+    # column_bounds: {variable block name: (lower, upper)}, arrays shaped like the block in its own units, NaN where the
+    # model's own bound stays; applied by model.build after every family, clipped into the model's own bounds. Used to fix
+    # builds and emissions of years already past (delayed action) and to cap unserved energy (achievability diagnosis).
+    column_bounds: dict[str, tuple[np.ndarray, np.ndarray]] = field(default_factory=dict)
+    # budget_overshoot_price [currency/tCO2]: when set, the carbon budget row gets a priced overshoot column (policy).
+    budget_overshoot_price: float | None = None
 
     @property
     def hours(self) -> int:
