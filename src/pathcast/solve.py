@@ -13,6 +13,7 @@ from dataclasses import dataclass, field
 
 import highspy
 import numpy as np
+from pyomo.common.gc_manager import PauseGC
 from pyomo.repn.plugins.standard_form import LinearStandardFormCompiler
 
 from .errors import SolverError
@@ -47,6 +48,8 @@ class Solution:
     nonzeros: int
     iterations: dict
     highs: object = field(repr=False, default=None)
+    row_map: np.ndarray | None = field(repr=False, default=None)  # LP row of each HiGHS row
+    col_map: np.ndarray | None = field(repr=False, default=None)  # LP column of each HiGHS column
 
 
 def highs_options_for(method: str, n_rows: int) -> dict:
@@ -67,13 +70,27 @@ def highs_options_for(method: str, n_rows: int) -> dict:
 
 
 def handoff(handles: PyomoHandles, n_rows: int, n_cols: int):
-    """Compile the Pyomo model to standard form and fill a HighsLp; return it with the row and column maps."""
-    compiled = LinearStandardFormCompiler().write(handles.model, mixed_form=True, column_order=handles.variables,
-                                                  row_order=handles.constraints)
-    position = {id(v): i for i, v in enumerate(handles.variables)}
-    col_map = np.fromiter((position[id(v)] for v in compiled.columns), dtype=np.int64, count=len(compiled.columns))
-    row_position = {id(c): i for i, c in enumerate(handles.constraints)}
-    row_map = np.fromiter((row_position[id(c)] for c, _ in compiled.rows), dtype=np.int64, count=len(compiled.rows))
+    """Compile the Pyomo model to standard form and fill a HighsLp; return it with the row and column maps.
+
+    The compiler is given the ``Var`` components (one per block, in LP order) as its column order: it then keeps the
+    LP's column order without a per-variable look-up. Rows come out in the order the ``Constraint`` components were
+    declared, which is the LP's row order; both orders are checked object by object (identity), and only if they
+    differ (a row or column dropped, e.g. an empty row) are the maps built by look-up."""
+    with PauseGC():  # the compiler makes a few objects per row; no cyclic GC passes while it runs
+        compiled = LinearStandardFormCompiler().write(handles.model, mixed_form=True,
+                                                      column_order=handles.var_components or handles.variables)
+    columns = compiled.columns
+    if len(columns) == len(handles.variables) and all(a is b for a, b in zip(columns, handles.variables, strict=True)):
+        col_map = np.arange(len(columns), dtype=np.int64)
+    else:
+        position = {id(v): i for i, v in enumerate(handles.variables)}
+        col_map = np.fromiter((position[id(v)] for v in columns), dtype=np.int64, count=len(columns))
+    row_cons = [c for c, _ in compiled.rows]
+    if len(row_cons) == len(handles.constraints) and all(a is b for a, b in zip(row_cons, handles.constraints, strict=True)):
+        row_map = np.arange(len(row_cons), dtype=np.int64)
+    else:
+        row_position = {id(c): i for i, c in enumerate(handles.constraints)}
+        row_map = np.fromiter((row_position[id(c)] for c in row_cons), dtype=np.int64, count=len(row_cons))
     senses = np.fromiter((s for _, s in compiled.rows), dtype=np.int64, count=len(compiled.rows))
 
     # mixed form: sense 1 is "<= rhs", 0 is "== rhs", -1 is ">= rhs" (coefficients as written)
@@ -83,14 +100,13 @@ def handoff(handles: PyomoHandles, n_rows: int, n_cols: int):
     upper = np.where(senses >= 0, rhs, math.inf)
 
     lp = highspy.HighsLp()
-    lp.num_col_ = len(compiled.columns)
+    lp.num_col_ = len(columns)
     lp.num_row_ = len(compiled.rows)
     cost = np.asarray(compiled.c.todense()).ravel() if compiled.c.shape[0] else np.zeros(lp.num_col_)
     lp.col_cost_ = cost
-    lb = np.array([(-math.inf if v.lb is None else v.lb) for v in compiled.columns], dtype=float)
-    ub = np.array([(math.inf if v.ub is None else v.ub) for v in compiled.columns], dtype=float)
-    lp.col_lower_ = lb
-    lp.col_upper_ = ub
+    bounds = [v.bounds for v in columns]
+    lp.col_lower_ = np.fromiter((-math.inf if b[0] is None else b[0] for b in bounds), dtype=float, count=len(bounds))
+    lp.col_upper_ = np.fromiter((math.inf if b[1] is None else b[1] for b in bounds), dtype=float, count=len(bounds))
     lp.row_lower_ = lower
     lp.row_upper_ = upper
     lp.a_matrix_.format_ = highspy.MatrixFormat.kColwise
@@ -136,7 +152,8 @@ def solve_highs(handles: PyomoHandles, n_rows: int, n_cols: int, options: Solver
         objective = float(info.objective_function_value)
     return Solution(status=status, objective=objective, x=x, row_dual=duals, method=options.method, options=highs_opts,
                     handoff_s=handoff_s, solve_s=solve_s, rows=lp.num_row_, columns=lp.num_col_,
-                    nonzeros=len(lp.a_matrix_.value_), iterations=iterations, highs=h)
+                    nonzeros=len(lp.a_matrix_.value_), iterations=iterations, highs=h,
+                    row_map=row_map, col_map=col_map)
 
 
 def new_highs(log: bool = False) -> highspy.Highs:
