@@ -1,0 +1,331 @@
+"""Speed and memory of pathcast against the bare solver, size by size (a script, not a test).
+
+For each size (years x representative hours x technologies) a synthetic scenario is generated
+(benchmarks/scenario_generator.py) and measured side by side in one run:
+
+- pathcast, end to end, in its own subprocess: (a) scenario load + validation, (b) model build (array LP, then
+  Pyomo), (c) hand-off to HiGHS, (d) HiGHS solve, (e) results extraction, (f) peak memory (``ru_maxrss``);
+- the reference path: the same LP, written once to MPS by pathcast (``writeModel`` after ``passModel``), read and
+  solved by a fresh ``highspy`` alone with the same options, in its own subprocess (the floor: bare read + solve);
+- HiGHS with its default options on the same MPS file (for the speed-up of the strategy pathcast chooses);
+- optionally (``--methods``) every solver method on the same MPS file, with its duals compared to a vertex solution.
+
+Each measurement is the median over ``--repeats`` runs; a case whose first run takes more than ``--long-run-s``
+seconds is run once. Repeats alternate pathcast / bare / defaults so that the machine's noise hits them alike.
+
+    python benchmarks/run_benchmarks.py --sizes 6x48x20,12x96x20 --repeats 3
+    python benchmarks/run_benchmarks.py --sizes 12x96x20 --methods simplex,ipm,ipm-crossover,pdlp --time-limit 600
+
+Results: JSON per run in ``--out`` (default benchmarks/out, git-ignored) and, with ``--write-results``, the report
+benchmarks/RESULTS.md.
+"""
+
+from __future__ import annotations
+
+import argparse
+import json
+import math
+import os
+import re
+import statistics
+import subprocess
+import sys
+import time
+from pathlib import Path
+
+HERE = Path(__file__).resolve().parent
+DEFAULT_SIZES = "6x48x20,12x96x20,18x144x20,24x192x20,36x288x20"
+
+
+# ------------------------------------------------------------------------------------------------- workers
+def _peak_rss_mb() -> float:
+    import resource
+
+    return resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024.0  # Linux: kilobytes
+
+
+def _lp_ranges(lp) -> dict:
+    """Coefficient ranges of a HighsLp, as HiGHS prints them (absolute values of finite nonzeros)."""
+    import numpy as np
+
+    def span(values) -> list[float]:
+        a = np.abs(np.asarray(values, dtype=float))
+        a = a[np.isfinite(a) & (a > 0)]
+        return [float(a.min()), float(a.max())] if len(a) else [0.0, 0.0]
+
+    return {"matrix": span(lp.a_matrix_.value_), "cost": span(lp.col_cost_),
+            "bound": span(np.concatenate([np.asarray(lp.col_lower_), np.asarray(lp.col_upper_)])),
+            "rhs": span(np.concatenate([np.asarray(lp.row_lower_), np.asarray(lp.row_upper_)]))}
+
+
+def worker_pathcast(args: argparse.Namespace) -> dict:
+    """One pathcast run through the pipeline the CLI uses; times come from the pipeline's own stage timer."""
+    import numpy as np
+
+    from pathcast.pipeline import run_scenario
+
+    started = time.perf_counter()
+    run = run_scenario(args.scenario, solver={"method": args.method, "time_limit_s": args.time_limit})
+    wall = time.perf_counter() - started
+    peak = _peak_rss_mb()
+    sol = run.solution
+    out = {"kind": "pathcast", "times": run.times.as_dict(), "wall_s": wall, "peak_rss_mb": peak,
+           "rows": sol.rows, "columns": sol.columns, "nonzeros": sol.nonzeros, "objective": sol.objective,
+           "status": sol.status, "method": sol.method, "options": sol.options, "iterations": sol.iterations}
+    if args.write_mps:
+        h = sol.highs
+        lp = h.getLp()
+        out["ranges"] = _lp_ranges(lp)
+        h.writeModel(str(args.write_mps))
+        # rows whose duals are checked: the carbon budget and the electricity balances, in HiGHS's row order
+        offsets = run.model.lp.row_offsets()
+        blocks = run.model.lp.row_blocks
+        # HiGHS's position of each LP row (the hand-off's row map, inverted; -1 for a row HiGHS never saw)
+        inverse = np.full(run.model.lp.matrix()[0].shape[0], -1, dtype=np.int64)
+        inverse[sol.row_map] = np.arange(len(sol.row_map))
+        budget = [int(offsets["carbon_budget"])] if "carbon_budget" in blocks else []
+        balance = (offsets["electricity_balance"] + np.arange(blocks["electricity_balance"].size)).tolist()
+        checked = {"carbon_budget": [int(inverse[i]) for i in budget],
+                   "electricity_balance": [int(inverse[i]) for i in balance],
+                   "reference_duals": {"carbon_budget": [float(sol.row_dual[i]) for i in budget],
+                                       "electricity_balance": [float(sol.row_dual[i]) for i in balance]}}
+        Path(str(args.write_mps) + ".rows.json").write_text(json.dumps(checked))
+    return out
+
+
+def worker_bare(args: argparse.Namespace) -> dict:
+    """A fresh highspy reads the MPS file and solves it; nothing from pathcast is imported."""
+    import highspy
+    import numpy as np
+
+    options = json.loads(args.options)
+    h = highspy.Highs()
+    h.setOptionValue("output_flag", True)
+    h.setOptionValue("log_to_console", False)
+    if args.log_file:
+        h.setOptionValue("log_file", str(args.log_file))
+    for key, value in options.items():
+        h.setOptionValue(key, value)
+    if args.time_limit:
+        h.setOptionValue("time_limit", float(args.time_limit))
+    started = time.perf_counter()
+    h.readModel(str(args.mps))
+    read_s = time.perf_counter() - started
+    started = time.perf_counter()
+    h.run()
+    solve_s = time.perf_counter() - started
+    peak = _peak_rss_mb()
+    info = h.getInfo()
+    status = h.modelStatusToString(h.getModelStatus())
+    lp = h.getLp()
+    out = {"kind": "bare", "options": options, "read_s": read_s, "solve_s": solve_s, "peak_rss_mb": peak,
+           "status": status, "objective": float(info.objective_function_value),
+           "rows": int(lp.num_row_), "columns": int(lp.num_col_), "nonzeros": len(lp.a_matrix_.value_),
+           "iterations": {"simplex": int(info.simplex_iteration_count), "ipm": int(info.ipm_iteration_count),
+                          "crossover": int(info.crossover_iteration_count)},
+           "max_primal_infeasibility": float(info.max_primal_infeasibility),
+           "max_dual_infeasibility": float(info.max_dual_infeasibility)}
+    rows_file = Path(str(args.mps) + ".rows.json")
+    if args.check_duals and rows_file.exists():
+        checked = json.loads(rows_file.read_text())
+        sol = h.getSolution()
+        out["dual_valid"] = bool(sol.dual_valid)
+        duals = np.asarray(sol.row_dual)
+        ref_budget = np.asarray(checked["reference_duals"]["carbon_budget"])
+        ref_balance = np.asarray(checked["reference_duals"]["electricity_balance"])
+        if len(duals) == out["rows"] and sol.dual_valid:
+            budget = duals[checked["carbon_budget"]] if checked["carbon_budget"] else np.zeros(0)
+            balance = duals[checked["electricity_balance"]]
+            scale = max(float(np.abs(ref_balance).max()), 1e-12)
+            out["carbon_dual"] = budget.tolist()
+            out["carbon_dual_reference"] = ref_budget.tolist()
+            out["carbon_dual_rel_diff"] = (float(abs(budget[0] - ref_budget[0]) / max(abs(ref_budget[0]), 1e-12))
+                                           if len(budget) else None)
+            # hourly prices: largest difference relative to the largest price, and the share of hours that differ
+            # by more than 1 % of it (a vertex can have other, equally valid duals where the LP is degenerate)
+            diff = np.abs(balance - ref_balance) / scale
+            out["price_max_rel_diff"] = float(diff.max())
+            out["price_share_hours_off_1pct"] = float((diff > 0.01).mean())
+    return out
+
+
+# ------------------------------------------------------------------------------------------------- driver
+def _run_worker(argv: list[str]) -> dict:
+    cmd = [sys.executable, str(Path(__file__).resolve()), *argv]
+    done = subprocess.run(cmd, capture_output=True, text=True)
+    if done.returncode != 0:
+        raise RuntimeError(f"worker {' '.join(argv)} failed:\n{done.stderr[-3000:]}")
+    return json.loads(done.stdout.strip().splitlines()[-1])
+
+
+def _median(values: list[float]) -> float:
+    return float(statistics.median(values)) if values else math.nan
+
+
+def _parse_ranges(log_file: Path) -> dict:
+    text = log_file.read_text() if log_file.exists() else ""
+    out = {}
+    for name in ("Matrix", "Cost", "Bound", "RHS"):
+        found = re.search(rf"{name}\s+\[([0-9.e+-]+),\s*([0-9.e+-]+)\]", text)
+        if found:
+            out[name.lower()] = [float(found.group(1)), float(found.group(2))]
+    return out
+
+
+def measure_size(size: str, args: argparse.Namespace) -> dict:
+    sys.path.insert(0, str(HERE))
+    from scenario_generator import write_scenario
+
+    out_dir = Path(args.out)
+    scenario = write_scenario(out_dir / "scenarios", size)
+    mps = out_dir / "mps" / (scenario.stem + ".mps")
+    mps.parent.mkdir(parents=True, exist_ok=True)
+    logs = out_dir / "logs"
+    logs.mkdir(parents=True, exist_ok=True)
+    common = ["--time-limit", str(args.time_limit)] if args.time_limit else []
+    method = args.method
+
+    def say(message: str) -> None:
+        print(f"[{time.strftime('%H:%M:%S')}] {size}: {message}", file=sys.stderr, flush=True)
+
+    pathcast_runs, bare_runs, default_runs = [], [], []
+    first = _run_worker(["--worker", "pathcast", "--scenario", str(scenario), "--method", method,
+                         "--write-mps", str(mps), *common])
+    pathcast_runs.append(first)
+    say(f"pathcast {first['times']['total_s']:.1f} s ({first['rows']:,} rows), solve {first['times']['solve_s']:.1f} s")
+    chosen = json.dumps({k: v for k, v in first["options"].items() if k != "time_limit"})
+    long_case = first["times"]["total_s"] > args.long_run_s
+    repeats = 1 if long_case else args.repeats
+    with_defaults = not args.no_defaults
+    for r in range(repeats):
+        if r > 0:
+            pathcast_runs.append(_run_worker(["--worker", "pathcast", "--scenario", str(scenario), "--method", method,
+                                              *common]))
+        bare_runs.append(_run_worker(["--worker", "bare", "--mps", str(mps), "--options", chosen, "--check-duals",
+                                      "--log-file", str(logs / f"{scenario.stem}.chosen.{r}.log"), *common]))
+        if with_defaults:
+            default_runs.append(_run_worker(["--worker", "bare", "--mps", str(mps), "--options", "{}", "--check-duals",
+                                             "--log-file", str(logs / f"{scenario.stem}.defaults.{r}.log"), *common]))
+        say(f"repeat {r + 1}/{repeats}: pathcast {pathcast_runs[-1]['times']['total_s']:.1f} s, bare "
+            f"{bare_runs[-1]['read_s'] + bare_runs[-1]['solve_s']:.1f} s"
+            + (f", defaults solve {default_runs[-1]['solve_s']:.1f} s" if with_defaults else ""))
+
+    methods = {}
+    for name in [m for m in args.methods.split(",") if m] if args.methods else []:
+        from pathcast.solve import highs_options_for
+
+        opts = {} if name == "defaults" else highs_options_for(name, first["rows"])
+        if args.threads:
+            opts["threads"] = args.threads
+        result = _run_worker(["--worker", "bare", "--mps", str(mps), "--options", json.dumps(opts), "--check-duals",
+                              "--log-file", str(logs / f"{scenario.stem}.{name}.log"), *common])
+        methods[name] = result
+        say(f"method {name}: {result['status']} in {result['solve_s']:.1f} s")
+
+    times = {key: _median([p["times"][key] for p in pathcast_runs]) for key in first["times"]}
+    bare_read = _median([b["read_s"] for b in bare_runs])
+    bare_solve = _median([b["solve_s"] for b in bare_runs])
+    bare_total = _median([b["read_s"] + b["solve_s"] for b in bare_runs])
+    overhead = times["build_lp_s"] + times["build_pyomo_s"] + times["handoff_s"] + times["extract_s"]
+    objective, bare_objective = first["objective"], bare_runs[0]["objective"]
+    row = {
+        "size": size, "rows": first["rows"], "columns": first["columns"], "nonzeros": first["nonzeros"],
+        "runs": len(pathcast_runs), "method": method, "options": json.loads(chosen), "times": times,
+        "pathcast_total_s": times["total_s"], "bare_read_s": bare_read, "bare_solve_s": bare_solve,
+        "bare_total_s": bare_total, "ratio": times["total_s"] / bare_total,
+        "overhead_s": overhead, "overhead_us_per_row": overhead * 1e6 / first["rows"],
+        "peak_rss_mb": _median([p["peak_rss_mb"] for p in pathcast_runs]),
+        "bare_peak_rss_mb": _median([b["peak_rss_mb"] for b in bare_runs]),
+        "objective": objective, "bare_objective": bare_objective,
+        "objective_rel_diff": abs(objective - bare_objective) / max(abs(bare_objective), 1e-12),
+        "ranges_lp": first.get("ranges"), "ranges_highs_log": _parse_ranges(logs / f"{scenario.stem}.chosen.0.log"),
+        "chosen_duals": {k: bare_runs[0].get(k) for k in ("dual_valid", "carbon_dual_rel_diff", "price_max_rel_diff")},
+        "methods": methods,
+    }
+    row["memory_ratio"] = row["peak_rss_mb"] / row["bare_peak_rss_mb"]
+    if default_runs:
+        row["defaults_solve_s"] = _median([d["solve_s"] for d in default_runs])
+        row["defaults_status"] = default_runs[0]["status"]
+        row["speedup_vs_defaults"] = row["defaults_solve_s"] / bare_solve
+        row["defaults_objective_rel_diff"] = abs(default_runs[0]["objective"] - bare_objective) / max(abs(bare_objective), 1e-12)
+    return row
+
+
+def build_exponent(rows: list[dict]) -> dict | None:
+    """Least-squares slope of log(build time) against log(years x hours) over the sizes with the most technologies."""
+    import numpy as np
+
+    techs = max(int(r["size"].split("x")[2]) for r in rows)
+    pts = [(int(r["size"].split("x")[0]) * int(r["size"].split("x")[1]),
+            r["times"]["build_lp_s"] + r["times"]["build_pyomo_s"]) for r in rows if int(r["size"].split("x")[2]) == techs]
+    if len(pts) < 2:
+        return None
+    x, y = np.log([p[0] for p in pts]), np.log([p[1] for p in pts])
+    slope, _ = np.polyfit(x, y, 1)
+    return {"technologies": techs, "points": len(pts), "exponent": float(slope)}
+
+
+def main(argv: list[str] | None = None) -> int:
+    parser = argparse.ArgumentParser(description=__doc__.split("\n\n")[0],
+                                     formatter_class=argparse.RawDescriptionHelpFormatter)
+    parser.add_argument("--sizes", default=DEFAULT_SIZES,
+                        help=f"comma-separated YEARSxHOURSxTECHNOLOGIES (default {DEFAULT_SIZES})")
+    parser.add_argument("--repeats", type=int, default=3, help="runs per case; the median is reported (default 3)")
+    parser.add_argument("--long-run-s", type=float, default=60.0, help="a case slower than this runs once (default 60)")
+    parser.add_argument("--method", default="auto", help="pathcast solver method (default auto)")
+    parser.add_argument("--methods", default="", help="also solve the MPS with each of these methods "
+                        "(simplex, ipm, ipm-crossover, pdlp, defaults), comma-separated")
+    parser.add_argument("--threads", type=int, default=None, help="HiGHS threads for --methods runs")
+    parser.add_argument("--time-limit", type=float, default=None, help="HiGHS time limit per solve [s]")
+    parser.add_argument("--no-defaults", action="store_true", help="skip the HiGHS-defaults comparison")
+    parser.add_argument("--out", default=str(HERE / "out"), help="folder for scenarios, MPS files, logs and JSON")
+    parser.add_argument("--json", default=None, help="file for the result rows (default <out>/results-<time>.json)")
+    parser.add_argument("--worker", choices=("pathcast", "bare"), help=argparse.SUPPRESS)
+    parser.add_argument("--scenario", help=argparse.SUPPRESS)
+    parser.add_argument("--write-mps", help=argparse.SUPPRESS)
+    parser.add_argument("--mps", help=argparse.SUPPRESS)
+    parser.add_argument("--options", default="{}", help=argparse.SUPPRESS)
+    parser.add_argument("--check-duals", action="store_true", help=argparse.SUPPRESS)
+    parser.add_argument("--log-file", help=argparse.SUPPRESS)
+    args = parser.parse_args(argv)
+
+    if args.worker == "pathcast":
+        print(json.dumps(worker_pathcast(args)))
+        return 0
+    if args.worker == "bare":
+        print(json.dumps(worker_bare(args)))
+        return 0
+
+    from pathcast.pipeline import package_versions
+
+    rows = []
+    out_json = Path(args.json) if args.json else Path(args.out) / f"results-{time.strftime('%Y%m%d-%H%M%S')}.json"
+    out_json.parent.mkdir(parents=True, exist_ok=True)
+    for size in [s for s in args.sizes.split(",") if s]:
+        rows.append(measure_size(size, args))
+        report = {"cores": os.cpu_count(), "versions": package_versions(), "rows": rows,
+                  "build_exponent": build_exponent(rows)}
+        out_json.write_text(json.dumps(report, indent=1))
+    print_table(rows, build_exponent(rows))
+    print(f"results in {out_json}", file=sys.stderr)
+    return 0
+
+
+def print_table(rows: list[dict], exponent: dict | None) -> None:
+    head = (f"{'size':>11} {'rows':>8} {'cols':>8} {'nnz':>9} {'n':>2} {'load':>6} {'lp':>6} {'pyomo':>6} {'hand':>6} "
+            f"{'solve':>7} {'extr':>6} {'total':>7} {'bare':>7} {'ratio':>6} {'us/row':>6} {'mem':>5} {'dflt':>7} "
+            f"{'x dflt':>6} {'objdiff':>8}")
+    print(head)
+    for r in rows:
+        t = r["times"]
+        print(f"{r['size']:>11} {r['rows']:>8,} {r['columns']:>8,} {r['nonzeros']:>9,} {r['runs']:>2} {t['load_s']:>6.2f} "
+              f"{t['build_lp_s']:>6.2f} {t['build_pyomo_s']:>6.2f} {t['handoff_s']:>6.2f} {t['solve_s']:>7.2f} "
+              f"{t['extract_s']:>6.2f} {t['total_s']:>7.2f} {r['bare_total_s']:>7.2f} {r['ratio']:>6.3f} "
+              f"{r['overhead_us_per_row']:>6.1f} {r['memory_ratio']:>5.2f} {r.get('defaults_solve_s', math.nan):>7.2f} "
+              f"{r.get('speedup_vs_defaults', math.nan):>6.2f} {r['objective_rel_diff']:>8.1e}")
+    if exponent:
+        print(f"build time ~ (years x hours)^{exponent['exponent']:.2f} over {exponent['points']} sizes")
+
+
+if __name__ == "__main__":
+    sys.exit(main())
