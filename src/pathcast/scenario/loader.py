@@ -214,7 +214,9 @@ def load_scenario(path: str | Path) -> LoadedScenario:
 
 
 def _explain(error: ValidationError, raw: dict, provenance: Provenance, default: Path) -> ScenarioError:
-    first = error.errors(include_url=False)[0]
+    errors = error.errors(include_url=False)
+    # a misspelt field shows up both as unknown and as a missing required one: report the misspelling
+    first = next((e for e in errors if e["type"] == "extra_forbidden"), errors[0])
     loc = tuple(first["loc"])
     # pydantic adds the union member or validator names to locations ('function-before[...]', 'float', ...)
     loc = tuple(p for p in loc if not (isinstance(p, str) and ("[" in p or p in {"float", "int", "str", "dict[int,float]", "list[float]"})))
