@@ -94,7 +94,7 @@ class _Strict(BaseModel):
 
 class Metadata(_Strict):
     name: str = Field(description="Short scenario name; the result folder is named after it.")
-    description: str = ""
+    description: str = Field("", description="Free text.")
     country: str = Field("", description="Country or region studied.")
     base_year: int = Field(ge=1900, le=2200, description="First modelled year.")
     final_year: int = Field(ge=1900, le=2200, description="Last modelled year (inclusive).")
@@ -121,7 +121,7 @@ class Metadata(_Strict):
 
 
 class RepresentativeDay(_Strict):
-    name: str
+    name: str = Field(description="Label of the day, unique.")
     weight_days: Annotated[float, Field(gt=0)] = Field(description="Days of the year this day stands for [days/yr].")
     demand_shape: list[float] = Field(
         description="24 hourly values of electricity demand, any scale (normalised so the year's demand is met)."
@@ -179,7 +179,7 @@ class Commodity(_Strict):
         0.0, description="CO2 released when 1 GJ is burned [tCO2/GJ] (net calorific basis)."
     )
     source: str = Field("", description="Where the emission factor comes from.")
-    description: str = ""
+    description: str = Field("", description="Free text.")
 
 
 class CapexPath(_Strict):
@@ -234,7 +234,7 @@ class ExistingCapacity(_Strict):
 
 
 class _Technology(_Strict):
-    description: str = ""
+    description: str = Field("", description="Free text.")
     capex: Capex = Field(description="Overnight investment [currency/kW] or a capex path.")
     fixed_om: Money_per_kW_year = Field(0.0, description="Fixed O&M [currency/kW/yr] on capacity in service.")
     variable_om: Money_per_MWh = Field(0.0, description="Variable O&M [currency/MWh] of output (converters: of input).")
@@ -299,7 +299,7 @@ class Converter(_Technology):
 
 
 class Supply(_Strict):
-    description: str = ""
+    description: str = Field("", description="Free text.")
     output: str = Field(description="Commodity supplied.")
     origin: Literal["import", "domestic", "biomass"] = "import"
     price: Annotated[YearPath, _path("currency/GJ")] = Field(description="Price path [currency/GJ].")
