@@ -107,9 +107,9 @@ def check_scenario(loaded: LoadedScenario) -> None:
             for i, e in enumerate(t.existing):
                 if e.retirement_year <= meta.base_year - 100:
                     fail(path + ("existing", i, "retirement_year"), e.retirement_year, "a plausible retirement year")
-            if t.capex.cumulative_deployment is not None and isinstance(t.capex.cumulative_deployment, dict):
-                if min(t.capex.cumulative_deployment.values()) <= 0:
-                    fail(path + ("capex", "cumulative_deployment"), min(t.capex.cumulative_deployment.values()), "cumulative deployment above 0 GW")
+            deployment = t.capex.cumulative_deployment
+            if isinstance(deployment, dict) and min(deployment.values()) <= 0:
+                fail(path + ("capex", "cumulative_deployment"), min(deployment.values()), "cumulative deployment above 0 GW")
     for name, st in tech.storage.items():
         if st.max_duration_hours is not None and st.max_duration_hours < st.min_duration_hours:
             fail(("technologies", "storage", name, "max_duration_hours"), st.max_duration_hours, "at least min_duration_hours")
