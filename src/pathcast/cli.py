@@ -19,6 +19,7 @@ __all__ = ["main", "COMMANDS"]
 COMMANDS: dict[str, tuple[str, str]] = {
     "run": ("run", "solve a scenario and write its tables to results/<scenario>/"),
     "check": ("check", "validate a scenario file without solving"),
+    "rates": ("rates", "required and realised CO2 reduction rates under the carbon budget"),
 }
 
 
