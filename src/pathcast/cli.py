@@ -19,6 +19,7 @@ __all__ = ["main", "COMMANDS"]
 COMMANDS: dict[str, tuple[str, str]] = {
     "run": ("run", "solve a scenario and write its tables to results/<scenario>/"),
     "check": ("check", "validate a scenario file without solving"),
+    "ensemble": ("ensemble", "solve many variants of a scenario (sensitivity, uncertainty) and summarise them"),
     "rates": ("rates", "required and realised CO2 reduction rates under the carbon budget"),
 }
 
