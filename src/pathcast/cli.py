@@ -21,6 +21,7 @@ COMMANDS: dict[str, tuple[str, str]] = {
     "check": ("check", "validate a scenario file without solving"),
     "ensemble": ("ensemble", "solve many variants of a scenario (sensitivity, uncertainty) and summarise them"),
     "rates": ("rates", "required and realised CO2 reduction rates under the carbon budget"),
+    "delay": ("delay", "cost of delayed action: reference pathway until a start year, least-cost under the budget after"),
 }
 
 

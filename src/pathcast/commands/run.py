@@ -5,10 +5,13 @@ from __future__ import annotations
 import argparse
 import sys
 import time
+from dataclasses import replace
 from pathlib import Path
 
-from ..pipeline import run_scenario
+from ..errors import InfeasibleError, ScenarioError
+from ..pipeline import Run, run_scenario
 from ..report.console import render_profile, render_summary
+from ..results.run_result import RunResult
 from ..results.writers import write_result
 from ..solve import METHODS
 
@@ -23,6 +26,10 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
     parser.add_argument("--no-parquet", action="store_true", help="skip Parquet files")
     parser.add_argument("--no-excel", action="store_true", help="skip the Excel workbook")
     parser.add_argument("--quiet", action="store_true", help="print only the summary")
+    parser.add_argument("--allow-overshoot", type=float, default=None, metavar="PRICE",
+                        help="relax the carbon budget: emissions above it cost PRICE [currency/tCO2], paid in the "
+                        "budget's last year; the overshoot is reported (default: the budget is a hard limit, and an "
+                        "unachievable one exits with code 3 and an explanation)")
 
 
 def execute(args: argparse.Namespace) -> int:
@@ -32,13 +39,62 @@ def execute(args: argparse.Namespace) -> int:
         if not args.quiet:
             print(f"[{time.perf_counter() - started:6.1f} s] {message}", file=sys.stderr, flush=True)
 
-    run = run_scenario(args.file, progress=progress,
-                       solver={"method": args.method, "time_limit_s": args.time_limit, "log": args.solver_log})
+    from ..analysis.achievability import diagnose_budget, explain
+
+    solver = {"method": args.method, "time_limit_s": args.time_limit, "log": args.solver_log}
+    overshoot_price = getattr(args, "allow_overshoot", None)
+    captured = {}
+
+    def hook(inputs):
+        if overshoot_price is not None:
+            if inputs.budget_mt is None:
+                raise ScenarioError(f"{args.file}: policy.carbon_budget: got none; expected a carbon budget for "
+                                    "--allow-overshoot to relax.", file=str(args.file), field="policy.carbon_budget")
+            if overshoot_price < 0:
+                raise ScenarioError(f"--allow-overshoot {overshoot_price!r}: expected a price >= 0 [currency/tCO2].")
+            inputs = replace(inputs, budget_overshoot_price=overshoot_price)
+        captured["inputs"] = inputs
+        return inputs
+
+    try:
+        run = run_scenario(args.file, progress=progress, solver=solver, inputs_hook=hook)
+    except InfeasibleError:
+        inputs = captured.get("inputs")
+        if inputs is None or inputs.budget_mt is None or overshoot_price is not None:
+            raise
+        diagnosis = diagnose_budget(inputs, budget_infeasible=True, solver=solver, progress=progress)
+        if diagnosis.achievable:  # pragma: no cover - HiGHS said infeasible, so this cannot be
+            raise
+        raise InfeasibleError(explain(diagnosis), diagnosis=diagnosis.as_dict()) from None
+    diagnosis = None
+    if overshoot_price is None:
+        diagnosis = diagnose_budget(captured["inputs"], budget_run=run, solver=solver, progress=progress)
+    else:
+        run = _with_overshoot(run, overshoot_price)
     out = args.out or Path("results") / run.result.scenario_name
     progress(f"writing tables to {out}")
     write_result(run.result, out, parquet=not args.no_parquet, excel=not args.no_excel)
+    if diagnosis is not None and not diagnosis.achievable:
+        print(f"pathcast: the pathway found sheds demand; its tables are in {out}/ for inspection.", file=sys.stderr)
+        raise InfeasibleError(explain(diagnosis), diagnosis=diagnosis.as_dict())
     print(render_summary(run.result))
+    if overshoot_price is not None:
+        s = run.result.summary
+        print(f"  budget overshoot {s['budget_overshoot_mtco2']:,.3f} MtCO2 at {overshoot_price:,.2f} "
+              f"{s.get('currency', '')}/tCO2 (paid in {s['budget_last_year']}: {s['budget_overshoot_cost_million']:,.1f} "
+              f"million {s.get('currency', '')})")
     if args.profile:
         print(render_profile(run.result))
     print(f"Results written to {out}/")
     return 0
+
+
+def _with_overshoot(run: Run, price: float) -> Run:
+    """The run with its budget overshoot [MtCO2] and its cost [million currency, undiscounted] in the summary."""
+    block = run.model.lp.variables["budget_overshoot"]
+    overshoot = max(0.0, float(run.solution.x[block.all()].sum()))
+    r = run.result
+    summary = dict(r.summary, budget_overshoot_mtco2=overshoot, budget_overshoot_price_per_tco2=price,
+                   budget_overshoot_cost_million=overshoot * price)
+    result = RunResult.create(r.scenario_name, dict(r.tables), summary, dict(r.manifest), dict(r.metadata))
+    return replace(run, result=result)
