@@ -20,6 +20,8 @@ COMMANDS: dict[str, tuple[str, str]] = {
     "run": ("run", "solve a scenario and write its tables to results/<scenario>/"),
     "check": ("check", "validate a scenario file without solving"),
     "ensemble": ("ensemble", "solve many variants of a scenario (sensitivity, uncertainty) and summarise them"),
+    "compare": ("compare", "compare scenarios side by side: comparison.csv and overlay charts"),
+    "memo": ("memo", "write a planning memo (memo.md and self-contained memo.html) of one or several scenarios"),
     "rates": ("rates", "required and realised CO2 reduction rates under the carbon budget"),
     "delay": ("delay", "cost of delayed action: reference pathway until a start year, least-cost under the budget after"),
 }
