@@ -15,6 +15,8 @@ import pandas as pd
 import pytest
 
 from pathcast.analysis.achievability import (
+    BindingLimit,
+    confirm_limits,
     diagnose_budget,
     explain,
     minimum_budget_emissions,
@@ -65,6 +67,18 @@ def test_binding_limits_are_the_build_rates_and_their_marginal_is_right(tight, d
     relaxed = replace(tight, technologies=tuple(techs))
     lower = minimum_budget_emissions(relaxed, diagnosis.no_budget_run).solution.objective
     assert diagnosis.tightest_budget_mtco2 - lower == pytest.approx(wind.marginal_mtco2_per_unit * 0.001, rel=1e-3)
+
+
+def test_a_limit_whose_relaxation_changes_nothing_is_dropped(tight, diagnosis):
+    # the emissions-only LP is degenerate, so a reduced cost can name a limit that does not bind: confirm_limits keeps a
+    # limit only when relaxing it (+5 %) lowers the minimum. The wind limit does; more combined-cycle gas plants, made up
+    # here as a candidate, do not.
+    wind = next(b for b in diagnosis.binding if b.name == "wind_onshore")
+    assert wind.relaxation == "+5 %" and wind.cut_mtco2 == pytest.approx(wind.marginal_mtco2_per_unit * 0.02, rel=1e-3)
+    fake = BindingLimit(kind="build-rate limit", name="gas_combined_cycle", years=(2025,), bound=100.0, unit="MW/yr",
+                        marginal_mtco2_per_unit=99.0)
+    kept = confirm_limits(tight, diagnosis.no_budget_run, diagnosis.tightest_budget_mtco2, (fake, wind))
+    assert [b.name for b in kept] == ["wind_onshore"]
 
 
 def test_run_exits_3_with_the_explanation(tmp_path, capsys):

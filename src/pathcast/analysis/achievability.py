@@ -8,16 +8,18 @@ For a budget that is not achievable, the **tightest feasible budget** is the min
 emissions under the scenario's other limits (build-rate limits, potentials, phase-outs, reserve margin, caps, clean
 share, any fixed history), with unserved energy capped hour by hour at the no-budget pathway's level: an LP with a
 pure emissions objective (:func:`pathcast.analysis.variants.emissions_only`). The **binding limits** are read from
-that LP: columns at a finite bound whose reduced cost d = c - A'y is nonzero (so relaxing the bound would lower the
-minimum), and policy rows with a nonzero dual. The reduced cost is in MtCO2 per unit of the bound (GW, GWh or PJ/yr),
-so it ranks the limits by how much one more unit of each would cut the minimum.
+that LP: columns at a finite bound whose reduced cost d = c - A'y is nonzero, and policy rows with a nonzero dual. The
+reduced cost is in MtCO2 per unit of the bound (GW, GWh or PJ/yr). That LP has no costs and is degenerate, so one
+dual solution can show a limit as binding that is not (relaxing it changes nothing); the candidates are therefore
+confirmed by re-solving with each relaxed by :data:`RELAXATION_STEP` of its value (:data:`RELAXATION_AT_ZERO` where it
+is zero) and keeping those whose relaxation lowers the minimum, ranked by how much it does.
 """
 
 from __future__ import annotations
 
 import math
 from collections.abc import Callable
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 
 import numpy as np
 
@@ -28,9 +30,13 @@ from ..scenario.inputs import ModelInputs
 from .variants import cap_unserved, emissions_only, without_budget
 
 __all__ = ["BindingLimit", "BudgetDiagnosis", "diagnose_budget", "minimum_budget_emissions", "binding_limits",
+           "confirm_limits", "RELAXATION_STEP", "RELAXATION_AT_ZERO", "CONFIRM_AT_MOST",
            "explain", "raise_if_not_achievable", "UNSERVED_TOLERANCE", "extra_unserved"]
 
 UNSERVED_TOLERANCE = 1e-6  # [TWh] and [PJ]: unserved energy beyond the no-budget case that still counts as none
+RELAXATION_STEP = 0.05  # a binding limit is confirmed by relaxing it by 5 % of its value (common practice, no source)
+RELAXATION_AT_ZERO = {"GW": 0.1, "PJ/yr": 1.0, "share": 0.01}  # steps where a limit is zero [GW, PJ/yr, -]
+CONFIRM_AT_MOST = 8  # candidates re-solved, largest reduced cost first
 _MARGINAL_TOLERANCE = 1e-7  # [MtCO2 per unit of a bound]: smaller reduced costs are solver noise
 
 Progress = Callable[[str], None]
@@ -42,7 +48,10 @@ class BindingLimit:
 
     kind: 'build-rate limit', 'no new builds', 'minimum build', 'potential', 'phase-out', 'supply potential',
     'no extra unserved energy', 'fixed history', 'reserve margin', 'clean-electricity share', 'storage duration'.
-    marginal_mtco2_per_unit: MtCO2 the minimum falls per unit more of the bound, summed over the binding years.
+    marginal_mtco2_per_unit: MtCO2 the minimum falls per unit more of the bound (GW, GWh, PJ/yr), summed over the
+    binding years (from the reduced costs of one dual solution). relaxation / cut_mtco2: the re-solve that confirmed
+    it, as a text (e.g. '+5 %') and the MtCO2 by which it lowered the minimum; None where not re-solved (the fixed
+    history and the cap on unserved energy bind by construction).
     """
 
     kind: str
@@ -51,14 +60,20 @@ class BindingLimit:
     bound: float | None
     unit: str
     marginal_mtco2_per_unit: float
+    relaxation: str | None = None
+    cut_mtco2: float | None = None
 
     def describe(self) -> str:
         span = _span(self.years)
         if self.kind in ("build-rate limit", "potential", "supply potential") and self.bound is not None:
-            return f"{self.kind} of {self.name} ({self.bound:,.0f} {self.unit}) in {span}"
-        if self.kind in ("no extra unserved energy", "fixed history"):
-            return f"{self.name} ({span})"
-        return f"{self.kind} of {self.name} in {span}"
+            text = f"{self.kind} of {self.name} ({self.bound:,.0f} {self.unit}) in {span}"
+        elif self.kind in ("no extra unserved energy", "fixed history"):
+            text = f"{self.name} ({span})"
+        else:
+            text = f"{self.kind} of {self.name} in {span}"
+        if self.cut_mtco2 is not None:
+            text += f" ({self.relaxation} lowers the minimum by {self.cut_mtco2:,.2f} MtCO2)"
+        return text
 
 
 @dataclass(frozen=True)
@@ -210,6 +225,76 @@ def _classify(block_name, block, index, bound, at_upper, pinned, ctx, inputs, ye
     return None, None, None, None, None
 
 
+def _relaxed(inputs: ModelInputs, limit: BindingLimit) -> tuple[ModelInputs, str] | None:
+    """``inputs`` with ``limit`` relaxed in its binding years, and the relaxation as a text; None if not relaxable."""
+    mask = np.isin(inputs.years, limit.years)
+
+    def up(values: np.ndarray, at_zero: float) -> np.ndarray:
+        values = np.asarray(values, dtype=float)
+        step = np.where(values > 0, RELAXATION_STEP * values, at_zero)
+        return np.where(mask & np.isfinite(values), values + step, values)
+
+    step_text = f"+{100 * RELAXATION_STEP:.0f} %"
+    techs = {t.name: i for i, t in enumerate(inputs.technologies)}
+    if limit.kind in ("build-rate limit", "no new builds", "potential", "phase-out", "minimum build"):
+        i = techs[limit.name]
+        t = inputs.technologies[i]
+        if limit.kind in ("build-rate limit", "no new builds"):
+            changed = replace(t, max_build_gw=up(t.max_build_gw, RELAXATION_AT_ZERO["GW"]))
+        elif limit.kind in ("potential", "phase-out"):
+            changed = replace(t, max_total_gw=up(t.max_total_gw, RELAXATION_AT_ZERO["GW"]))
+        else:
+            changed = replace(t, min_build_gw=np.where(mask, (1 - RELAXATION_STEP) * t.min_build_gw, t.min_build_gw))
+            step_text = f"-{100 * RELAXATION_STEP:.0f} %"
+        if limit.kind in ("no new builds", "phase-out"):
+            step_text = f"+{1000 * RELAXATION_AT_ZERO['GW']:,.0f} MW"
+        techs_new = list(inputs.technologies)
+        techs_new[i] = changed
+        return replace(inputs, technologies=tuple(techs_new)), step_text
+    if limit.kind == "supply potential":
+        supplies = list(inputs.supplies)
+        i = next(k for k, sup in enumerate(supplies) if sup.name == limit.name)
+        supplies[i] = replace(supplies[i], potential_pj=up(supplies[i].potential_pj, RELAXATION_AT_ZERO["PJ/yr"]))
+        return replace(inputs, supplies=tuple(supplies)), step_text
+    if limit.kind == "reserve margin" and inputs.reserve_margin > 0:
+        step = RELAXATION_AT_ZERO["share"]
+        return replace(inputs, reserve_margin=max(0.0, inputs.reserve_margin - step)), f"-{100 * step:.0f} points"
+    if limit.kind == "clean-electricity share" and inputs.clean_share is not None:
+        step = RELAXATION_AT_ZERO["share"]
+        share = np.where(mask, np.maximum(inputs.clean_share - step, 0.0), inputs.clean_share)
+        return replace(inputs, clean_share=share), f"-{100 * step:.0f} points"
+    return None
+
+
+def confirm_limits(inputs: ModelInputs, no_budget_run: Run, minimum_mt: float, candidates: tuple[BindingLimit, ...],
+                   *, solver: dict | None = None, at_most: int = CONFIRM_AT_MOST) -> tuple[BindingLimit, ...]:
+    """Keep the candidate limits whose relaxation (:func:`_relaxed`) lowers the minimum cumulative emissions
+    ``minimum_mt`` [MtCO2] by more than the solver's tolerance; ranked by that cut. Limits that bind by construction
+    (fixed history, the cap on unserved energy) are kept without a re-solve, listed after the confirmed ones."""
+    tolerance = 1e-6 * max(1.0, abs(minimum_mt))
+    confirmed, kept, tried = [], [], 0
+    for limit in candidates:
+        if limit.kind in ("fixed history", "no extra unserved energy"):
+            kept.append(limit)
+            continue
+        if tried >= at_most:
+            continue
+        variant = _relaxed(inputs, limit)
+        if variant is None:
+            continue
+        tried += 1
+        relaxed_inputs, text = variant
+        try:
+            lower = float(minimum_budget_emissions(relaxed_inputs, no_budget_run, solver=solver).solution.objective)
+        except InfeasibleError:  # pragma: no cover - relaxing a limit cannot make the LP infeasible
+            continue
+        if minimum_mt - lower > tolerance:
+            confirmed.append(replace(limit, relaxation=text, cut_mtco2=minimum_mt - lower))
+    confirmed.sort(key=lambda b: -b.cut_mtco2)
+    kept.sort(key=lambda b: b.kind == "no extra unserved energy")
+    return tuple(confirmed + kept)
+
+
 def diagnose_budget(inputs: ModelInputs, *, budget_run: Run | None = None, budget_infeasible: bool = False,
                     solver: dict | None = None, always_minimum: bool = False,
                     progress: Progress | None = None) -> BudgetDiagnosis | None:
@@ -246,7 +331,9 @@ def diagnose_budget(inputs: ModelInputs, *, budget_run: Run | None = None, budge
         say("solving for the minimum cumulative emissions")
         minimum = minimum_budget_emissions(inputs, no_budget_run, solver=solver)
         tightest = float(minimum.solution.objective)
-        binding = binding_limits(minimum)
+        candidates = binding_limits(minimum)
+        say(f"confirming up to {CONFIRM_AT_MOST} of {len(candidates)} candidate binding limits by re-solving")
+        binding = confirm_limits(inputs, no_budget_run, tightest, candidates, solver=solver)
     return BudgetDiagnosis(scenario=inputs.name, requested_mtco2=float(inputs.budget_mt), first_year=int(first),
                            last_year=int(last), achievable=achievable, infeasible_in_solver=infeasible,
                            extra_unserved_electricity_twh=extra_el, extra_unserved_fuel_pj=extra_fuel,
