@@ -159,3 +159,27 @@ def test_allow_overshoot_without_a_budget(tmp_path, capsys):
     path = write_scenario(tmp_path, mapping)
     assert main(["run", str(path), "--allow-overshoot", "50", "--quiet", "--out", str(tmp_path / "r")]) == 2
     assert "policy.carbon_budget: got none; expected a carbon budget for --allow-overshoot to relax." in capsys.readouterr().err
+
+
+def test_error_paths_raise_one_sentence_errors(tiny_run, tmp_path):
+    import argparse
+
+    from pathcast.commands import run as run_command
+    from pathcast.errors import ScenarioError
+
+    inputs = tiny_run.model.inputs
+    techs = tuple(replace(t, max_total_gw=np.minimum(t.max_total_gw, 0.1)) for t in inputs.technologies)
+    conflicting = replace(inputs, reserve_margin=2.0, technologies=techs)
+    with pytest.raises(InfeasibleError, match=r"scenario 'tiny' is infeasible even without its carbon budget: its other limits"):
+        diagnose_budget(conflicting)
+    parser = argparse.ArgumentParser()
+    run_command.add_arguments(parser)
+    args = parser.parse_args([str(DATA / "tiny.yaml"), "--allow-overshoot", "-5", "--quiet", "--out", str(tmp_path / "r")])
+    with pytest.raises(ScenarioError, match=r"--allow-overshoot -5\.0: expected a price >= 0 \[currency/tCO2\]\."):
+        run_command.execute(args)
+    mapping = tiny_mapping()
+    del mapping["policy"]["carbon_budget"]
+    path = write_scenario(tmp_path, mapping)
+    args = parser.parse_args([str(path), "--allow-overshoot", "50", "--quiet", "--out", str(tmp_path / "r")])
+    with pytest.raises(ScenarioError, match=r"policy\.carbon_budget: got none; expected a carbon budget for --allow-overshoot"):
+        run_command.execute(args)

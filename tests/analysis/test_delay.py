@@ -152,3 +152,11 @@ def test_delay_error_paths(inputs, capsys):
         delayed_action(replace(inputs, budget_mt=None, budget_years=None), [2025])
     assert main(["delay", str(DATA / "analytics_budget.yaml"), "--start", "2025;2030"]) == 2
     assert "--start '2025;2030': expected whole years separated by commas" in capsys.readouterr().err
+
+
+def test_parse_years_error():
+    from pathcast.commands.delay import parse_years
+
+    assert parse_years("2025, 2030,2035") == [2025, 2030, 2035]
+    with pytest.raises(ScenarioError, match=r"--start '2025;2030': expected whole years separated by commas"):
+        parse_years("2025;2030")

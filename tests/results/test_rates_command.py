@@ -49,3 +49,17 @@ def test_rates_error_paths(tmp_path, capsys):
     (tmp_path / "empty").mkdir()
     assert main(["rates", str(tmp_path / "empty")]) == 2
     assert "got a folder without summary.json" in capsys.readouterr().err
+
+
+def test_rates_error_paths_raise_one_sentence_errors(tiny_run, tmp_path):
+    from pathcast.commands.rates import load_result, start_years_from
+    from pathcast.errors import ScenarioError
+    from pathcast.results.budget import budget_terms
+
+    with pytest.raises(ScenarioError, match=r"missing\.yaml: \(path\): got no such file or folder; expected a scenario YAML"):
+        load_result(tmp_path / "missing.yaml")
+    terms = budget_terms(tiny_run.result)
+    with pytest.raises(ScenarioError, match=r"--step 0: expected a whole number of years >= 1\."):
+        start_years_from(tiny_run.result, terms, None, None, 0)
+    with pytest.raises(ScenarioError, match=r"--from 2028 is after --to 2026; expected a first start year <= the last\."):
+        start_years_from(tiny_run.result, terms, 2028, 2026, 1)
