@@ -140,3 +140,25 @@ def test_one_at_a_time_tornado_and_memo_section(data_dir, tmp_path):
 def test_cli_rejects_zero_workers(data_dir, capsys):
     assert main(["ensemble", str(data_dir / "ensemble_lhs.yaml"), "--workers", "0"]) == 2
     assert "--workers: got 0; expected a whole number of worker processes >= 1." in capsys.readouterr().err
+
+
+def test_reference_budget_replaces_the_members_own(write_ensemble, tmp_path):
+    text = """name: ref
+base: BASE
+design: grid
+reference_budget_mt: 20
+inputs:
+  gas:
+    path: technologies.supplies.gas_import.price
+    as: multiplier
+    values: [1.0]
+"""
+    out = tmp_path / "ref"
+    run_ensemble(write_ensemble(text), out, serial=True, progress=False, figures=False)
+    summary = summarise_ensemble(out)
+    row = summary.members.iloc[0]
+    # tiny.yaml's own 25 MtCO2 budget binds, so 25 MtCO2 are emitted: 5 over the reference budget of 20
+    assert row["budget_mtco2"] == 20 and row["budget_margin_mtco2"] == pytest.approx(-5.0, abs=1e-6)
+    assert summary.stats["probability_within_budget"] == 0.0
+    last = summary.yearly.sort_values("year").iloc[-1]
+    assert last["cumulative_in_budget_period_mtco2"] == pytest.approx(25.0, abs=1e-6) and last["budget_mtco2"] == 20

@@ -119,7 +119,7 @@ def emissions_fan_figure(summary: EnsembleSummary) -> Figure:
     left.set_title("Yearly emissions", fontsize=10)
     for ax in (left, right):
         ax.set_xlabel("year")
-        ax.xaxis.set_major_locator(MaxNLocator(integer=True))
+        ax.xaxis.set_major_locator(MaxNLocator(nbins=5, integer=True))
         ax.grid(True, alpha=0.3)
         ax.set_ylim(bottom=0)
     fig.suptitle(_title(summary))
@@ -146,7 +146,7 @@ def capacity_fan_figure(summary: EnsembleSummary) -> Figure:
         ax.set_title(technology.replace("_", " "), fontsize=10)
         ax.set_ylabel("capacity [GW]")
         ax.set_xlabel("year")
-        ax.xaxis.set_major_locator(MaxNLocator(integer=True))
+        ax.xaxis.set_major_locator(MaxNLocator(nbins=5, integer=True))
         ax.set_ylim(bottom=0)
         ax.grid(True, alpha=0.3)
     for ax in axes[len(keep):]:
@@ -233,14 +233,14 @@ def tornado_figure(summary: EnsembleSummary) -> Figure | None:
     tornado = summary.tornado
     if tornado is None or tornado.empty:
         return None
-    metrics = [("total_discounted_cost_million", 1e-3, f"change of total discounted cost [{_money_label(summary)}]"),
-               ("cumulative_emissions_mtco2", 1.0, "change of cumulative CO2 emissions [MtCO2]")]
+    metrics = [("total_discounted_cost_million", 1e-3, _money_label(summary), "total discounted cost"),
+               ("cumulative_emissions_mtco2", 1.0, "MtCO2", "cumulative CO2 emissions")]
     count = tornado["input"].nunique()
     fig = Figure(figsize=(12, 1.2 + 0.55 * count), layout="constrained")
     axes = fig.subplots(1, 2)
     low_style = {"facecolor": scenario_style(2)["color"], "hatch": "//", "edgecolor": "#1b1b1b", "alpha": 0.8}
     high_style = {"facecolor": scenario_style(1)["color"], "hatch": "..", "edgecolor": "#1b1b1b", "alpha": 0.8}
-    for ax, (metric, scale, label) in zip(axes, metrics, strict=True):
+    for ax, (metric, scale, unit, quantity) in zip(axes, metrics, strict=True):
         rows = tornado[tornado["metric"] == metric].sort_values("swing", ascending=True, na_position="first")
         positions = np.arange(len(rows))
         low = (rows["at_low"] - rows["base"]).to_numpy(dtype=float) * scale
@@ -252,10 +252,10 @@ def tornado_figure(summary: EnsembleSummary) -> Figure | None:
                                               strict=True)]
         ax.set_yticks(positions, names, fontsize=8)
         ax.axvline(0.0, color="#1b1b1b", linewidth=1.0)
-        ax.set_xlabel(label)
+        ax.set_xlabel(f"change of {quantity} from the base [{unit}]")
         ax.grid(True, axis="x", alpha=0.3)
         base = rows["base"].iloc[0] * scale if len(rows) else math.nan
-        ax.set_title(f"base: {base:,.4g}", fontsize=9)
+        ax.set_title(f"{quantity[0].upper() + quantity[1:]} (base scenario: {base:,.4g} {unit})", fontsize=9)
     fig.legend([Patch(**low_style), Patch(**high_style)], ["input at its low value", "input at its high value"],
                loc="outside lower center", ncols=2, frameon=False)
     fig.suptitle(f"One-at-a-time sensitivities, ensemble {summary.design['name']}")
@@ -291,6 +291,7 @@ def save_png(fig: Figure, path: Path | str, dpi: int = DPI) -> Path:
     os.close(handle)
     try:
         fig.savefig(tmp, dpi=dpi, format="png")
+        os.chmod(tmp, 0o644)  # mkstemp makes it private; results are for reading
         os.replace(tmp, path)
     except BaseException:
         Path(tmp).unlink(missing_ok=True)

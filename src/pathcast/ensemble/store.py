@@ -33,6 +33,7 @@ def write_json_atomic(path: Path, data: Any) -> Path:
             json.dump(data, out, indent=1, default=_default)
             out.flush()
             os.fsync(out.fileno())
+        os.chmod(tmp, 0o644)  # mkstemp makes it private; results are for reading
         os.replace(tmp, path)
     except BaseException:
         Path(tmp).unlink(missing_ok=True)

@@ -170,6 +170,9 @@ def _member_row(member: dict, record: dict, inputs: dict, reference: float | Non
             "unserved_fuel_pj": head["unserved_fuel_pj"],
         })
         yearly_frame = pd.DataFrame({"member": member["index"], **yearly})
+        # against the budget used here (the reference budget, when given, may belong to no member)
+        yearly_frame["cumulative_in_budget_period_mtco2"] = np.cumsum(np.where(inside, emissions, 0.0))
+        yearly_frame["budget_mtco2"] = math.nan if budget is None else float(budget)
         for name, tech in record["capacity"].items():
             capacity_frames.append(pd.DataFrame({"member": member["index"], "technology": name, "kind": tech["kind"],
                                                 "year": yearly["year"], "capacity_mw": tech["capacity_mw"]}))
