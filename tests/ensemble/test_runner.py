@@ -162,3 +162,15 @@ inputs:
     assert summary.stats["probability_within_budget"] == 0.0
     last = summary.yearly.sort_values("year").iloc[-1]
     assert last["cumulative_in_budget_period_mtco2"] == pytest.approx(25.0, abs=1e-6) and last["budget_mtco2"] == 20
+
+
+def test_cli_connects_to_an_existing_scheduler(data_dir, tmp_path, capsys):
+    from distributed import LocalCluster
+
+    with LocalCluster(n_workers=1, threads_per_worker=1, processes=True, dashboard_address=None) as cluster:
+        address = cluster.scheduler_address
+        code = main(["ensemble", str(data_dir / "ensemble_fail.yaml"), "--scheduler", address, "--out",
+                     str(tmp_path / "remote"), "--quiet", "--no-figures"])
+    assert code == 0
+    out = capsys.readouterr().out
+    assert f"(scheduler {address}, 1 worker)" in out and "2 solved, 1 failed" in out
