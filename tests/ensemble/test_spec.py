@@ -155,3 +155,11 @@ def test_year_key_and_list_index_paths(write_ensemble):
     spec = load_ensemble(write_ensemble(text))
     assert spec.paths["diesel_2029"][-1] == 2029
     assert spec.paths["gas_fleet"][-2:] == (0, "capacity_mw")
+
+
+def test_summary_of_a_folder_that_is_no_ensemble(tmp_path):
+    from pathcast.ensemble import ensemble_robustness_section
+
+    with pytest.raises(ScenarioError, match=r"ensemble\.json: got no such file; expected an ensemble folder written by "
+                       r"'pathcast ensemble'\.$"):
+        ensemble_robustness_section(tmp_path)
