@@ -361,9 +361,13 @@ def explain(d: BudgetDiagnosis, *, limits_shown: int = 5) -> str:
     if shortfall > budget_tolerance(d.requested_mtco2):
         text += (f" Under the scenario's other limits the tightest feasible budget is {d.tightest_budget_mtco2:,.1f} "
                  f"MtCO2, so the requested budget is {shortfall:,.1f} MtCO2 short.")
-        shown = [b.describe() for b in d.binding[:limits_shown]]
+        # the fixed history (a delayed start) first, then the confirmed limits by their effect; the cap on unserved
+        # energy binds by definition and is not repeated here
+        history = [b for b in d.binding if b.kind == "fixed history"]
+        others = [b for b in d.binding if b.kind not in ("fixed history", "no extra unserved energy")]
+        shown = [b.describe() for b in history + others[:limits_shown]]
         if shown:
-            more = f" and {len(d.binding) - limits_shown} more" if len(d.binding) > limits_shown else ""
+            more = f" and {len(others) - limits_shown} more" if len(others) > limits_shown else ""
             text += f" Binding limits: {'; '.join(shown)}{more}."
         text += (" Relax those limits, ask for a larger budget, or price an overshoot with "
                  "'pathcast run --allow-overshoot PRICE'.")
