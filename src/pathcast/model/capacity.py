@@ -68,7 +68,12 @@ def add_capacity(ctx: BuildContext) -> None:
     if storage:
         Y = ctx.Y
         power_rows = np.array([ctx.position[t.name] for t in storage])
-        upper_total = stack("max_total_gw")[power_rows] * np.array([[min(t.max_duration_h, 1e6)] for t in storage])
+        # energy potential [GWh] = power potential x longest duration; with no longest duration it is unbounded
+        # (no column bound at all, rather than a 1e6-hour stand-in that widens the bound range HiGHS scales for)
+        max_power = stack("max_total_gw")[power_rows]
+        duration = np.array([[t.max_duration_h] for t in storage])
+        upper_total = np.where(np.isfinite(duration), max_power * np.where(np.isfinite(duration), duration, 0.0),
+                               np.where(max_power == 0.0, 0.0, np.inf))
         _add_fleet(ctx, storage, "energy_", np.array([t.existing_energy_gwh for t in storage]),
                    0.0, np.inf, upper_total, np.array([t.energy_capex for t in storage]),
                    np.array([t.energy_fixed_om for t in storage]), "GWh")

@@ -84,6 +84,7 @@ class LinearProgram:
         self._n_cols = 0
         self._cost_cols: list[np.ndarray] = []
         self._cost_coefs: list[np.ndarray] = []
+        self._matrix_cache: tuple | None = None  # (fingerprint, (matrix, lower, upper))
 
     # ---------------------------------------------------------------------------------------- variables
     def add_variables(self, name: str, dims: tuple[str, ...], shape: tuple[int, ...], unit: str,
@@ -127,8 +128,24 @@ class LinearProgram:
             np.add.at(c, np.concatenate(self._cost_cols), np.concatenate(self._cost_coefs))
         return c
 
+    def _fingerprint(self) -> tuple:
+        """Changes whenever a block or a batch of coefficients is added (blocks only ever grow) or a right-hand side
+        changes."""
+        return (self._n_cols, tuple((name, b.sense, len(b.rows), hash(b.rhs.tobytes())) for name, b in self.row_blocks.items()))
+
     def matrix(self) -> tuple[sp.csr_array, np.ndarray, np.ndarray]:
-        """The whole constraint matrix in CSR with row lower and upper bounds (duplicates summed, zeros dropped)."""
+        """The whole constraint matrix in CSR with row lower and upper bounds (duplicates summed, zeros dropped).
+
+        Assembled once and kept until a block or coefficients are added (the pipeline and the Pyomo build both ask
+        for it); treat the returned arrays as read-only."""
+        key = self._fingerprint()
+        if self._matrix_cache is not None and self._matrix_cache[0] == key:
+            return self._matrix_cache[1]
+        result = self._assemble()
+        self._matrix_cache = (key, result)
+        return result
+
+    def _assemble(self) -> tuple[sp.csr_array, np.ndarray, np.ndarray]:
         offset = 0
         rows, cols, coefs, lower, upper = [], [], [], [], []
         for block in self.row_blocks.values():
