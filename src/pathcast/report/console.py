@@ -34,17 +34,31 @@ def render_summary(result: RunResult) -> str:
 
 
 def render_profile(result: RunResult) -> str:
+    """Stage times with their share of the run, the LP size and coefficient range, the modelling overhead per LP
+    row (build + hand-off + extraction, i.e. everything that is neither reading the scenario nor solving), and the
+    solver method, options, iterations and residuals HiGHS reported."""
     m = result.manifest
     times = m.get("stage_times_s", {})
     lp = m.get("lp", {})
+    solver = m.get("solver", {})
+    total = times.get("total_s", 0.0) or 1e-12
     lines = ["Stage times [s]"]
     for key in ("load_s", "build_lp_s", "build_pyomo_s", "handoff_s", "solve_s", "extract_s", "total_s"):
         if key in times:
-            lines.append(f"  {key[:-2].replace('_', ' '):<16}{times[key]:>10.3f}")
+            share = "" if key == "total_s" else f"{100.0 * times[key] / total:>7.1f} %"
+            lines.append(f"  {key[:-2].replace('_', ' '):<16}{times[key]:>10.3f}{share}")
     rows = lp.get("rows", 0) or 1
-    overhead = times.get("build_lp_s", 0) + times.get("build_pyomo_s", 0) + times.get("handoff_s", 0) + times.get("extract_s", 0)
+    overhead = sum(times.get(k, 0.0) for k in ("build_lp_s", "build_pyomo_s", "handoff_s", "extract_s"))
+    coef = lp.get("coefficient_range", {})
     lines.append(f"LP: {lp.get('rows', 0):,} rows, {lp.get('columns', 0):,} columns, {lp.get('nonzeros', 0):,} nonzeros; "
-                 f"coefficients {lp.get('coefficient_range', {}).get('min', 0):.3g} to {lp.get('coefficient_range', {}).get('max', 0):.3g}")
-    lines.append(f"modelling overhead {overhead * 1e6 / rows:.1f} us per row; solver method {m.get('solver', {}).get('method')} "
-                 f"options {m.get('solver', {}).get('options')}")
+                 f"matrix coefficients {coef.get('min', 0):.3g} to {coef.get('max', 0):.3g}"
+                 + (f" (ratio {coef['max'] / coef['min']:.3g})" if coef.get("min") else ""))
+    lines.append(f"modelling overhead (build + hand-off + extraction) {overhead:.3f} s = {overhead * 1e6 / rows:.1f} us per row")
+    iterations = solver.get("iterations") or {}
+    used = ", ".join(f"{k} {v:,}" for k, v in iterations.items() if v)
+    lines.append(f"solver: HiGHS, method {solver.get('method')} -> options {solver.get('options')}; "
+                 f"status {solver.get('status')}; iterations: {used or 'none'}")
+    pinf, dinf = solver.get("primal_infeasibility"), solver.get("dual_infeasibility")
+    if pinf is not None and dinf is not None:
+        lines.append(f"  max primal infeasibility {pinf:.2g}, max dual infeasibility {dinf:.2g}")
     return "\n".join(lines)
