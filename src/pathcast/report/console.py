@@ -20,7 +20,9 @@ def render_summary(result: RunResult) -> str:
     if budget is not None:
         verdict = "within" if s.get("within_budget") else "OVER"
         lines.append(f"  carbon budget {s['budget_first_year']}-{s['budget_last_year']}       {budget:>14,.1f} MtCO2 ({verdict} budget)")
-    lines.append(f"  CO2 in {s['base_year']} / {s['final_year']}            {s['first_year_emissions_mtco2']:>8,.1f} / {s['final_year_emissions_mtco2']:,.1f} MtCO2/yr")
+    first, last = (s["first_year_emissions_mtco2"] + 0.0, s["final_year_emissions_mtco2"] + 0.0)
+    first, last = (0.0 if abs(v) < 5e-7 else v for v in (first, last))  # no "-0.0" from solver tolerances
+    lines.append(f"  CO2 in {s['base_year']} / {s['final_year']}            {first:>8,.1f} / {last:,.1f} MtCO2/yr")
     if s.get("unserved_electricity_twh", 0) > 1e-6 or s.get("unserved_fuel_pj", 0) > 1e-6:
         lines.append(f"  UNSERVED: electricity {s['unserved_electricity_twh']:,.3f} TWh, fuels {s['unserved_fuel_pj']:,.3f} PJ over the horizon")
     lines.append("")
