@@ -56,8 +56,11 @@ def render_robustness(summary: EnsembleSummary, *, heading_level: int = 2, figur
     lines.append("")
     probability = s.get("probability_within_budget")
     if probability is not None and math.isfinite(probability):
-        lines.append(f"Probability of staying within the carbon budget: **{probability:.0%}** ({s['within_budget']} of "
-                     f"{s['solved'] + s['infeasible']} members: {s['probability_definition']}).")
+        budget = s.get("reference_budget_mt")
+        which = f"the {budget:,.0f} MtCO2 budget" if budget is not None else "the carbon budget"
+        lines.append(f"Probability of staying within {which}: **{probability:.0%}**, {s['within_budget']} of the "
+                     f"{s['solved'] + s['infeasible']} members that solved or proved infeasible (a member counts when "
+                     "its emissions in the budget period stay within the budget while all demand is served).")
         lines.append("")
     if summary.tornado is not None and not summary.tornado.empty:
         cost = summary.tornado[summary.tornado["metric"] == "total_discounted_cost_million"].dropna(subset=["swing"])

@@ -15,6 +15,7 @@ import os
 import sys
 import time
 import uuid
+import warnings
 from collections.abc import Callable, Iterator
 from dataclasses import dataclass, field, replace
 from pathlib import Path
@@ -170,8 +171,10 @@ class _Dask:
             if self.scheduler:
                 self.client = Client(self.scheduler)
             else:
-                self.cluster = LocalCluster(n_workers=self.requested, threads_per_worker=1, processes=True,
-                                            dashboard_address=None, silence_logs=logging.ERROR)
+                with warnings.catch_warnings():  # another cluster holds the default HTTP port: a free one is taken
+                    warnings.filterwarnings("ignore", message="Port .* is already in use")
+                    self.cluster = LocalCluster(n_workers=self.requested, threads_per_worker=1, processes=True,
+                                                dashboard_address=None, silence_logs=logging.ERROR)
                 self.client = Client(self.cluster)
         self.workers = len(self.client.scheduler_info().get("workers", {})) or self.requested
         self.mode = f"scheduler {self.scheduler}" if self.scheduler else "local cluster"
