@@ -34,11 +34,20 @@ import time
 from pathlib import Path
 
 HERE = Path(__file__).resolve().parent
+sys.path.insert(0, str(HERE))
 DEFAULT_SIZES = "6x48x20,12x96x20,18x144x20,24x192x20,36x288x20"
 
 
 # ------------------------------------------------------------------------------------------------- workers
 def _peak_rss_mb() -> float:
+    """Peak resident memory of this process [MB]: VmHWM of /proc/self/status, which starts afresh at exec (unlike
+    ``ru_maxrss``, which a child started by fork + exec inherits from its parent); ``ru_maxrss`` elsewhere."""
+    try:
+        for line in Path("/proc/self/status").read_text().splitlines():
+            if line.startswith("VmHWM:"):
+                return float(line.split()[1]) / 1024.0  # kB
+    except OSError:
+        pass
     import resource
 
     return resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024.0  # Linux: kilobytes
@@ -280,6 +289,9 @@ def main(argv: list[str] | None = None) -> int:
     parser.add_argument("--no-defaults", action="store_true", help="skip the HiGHS-defaults comparison")
     parser.add_argument("--out", default=str(HERE / "out"), help="folder for scenarios, MPS files, logs and JSON")
     parser.add_argument("--json", default=None, help="file for the result rows (default <out>/results-<time>.json)")
+    parser.add_argument("--report", nargs="+", metavar="JSON", default=None,
+                        help="write benchmarks/RESULTS.md from these result files (rows merged, later files win)")
+    parser.add_argument("--demo", default=None, help="with --report: JSON of a demo run (see RESULTS.md)")
     parser.add_argument("--worker", choices=("pathcast", "bare"), help=argparse.SUPPRESS)
     parser.add_argument("--scenario", help=argparse.SUPPRESS)
     parser.add_argument("--write-mps", help=argparse.SUPPRESS)
@@ -298,6 +310,11 @@ def main(argv: list[str] | None = None) -> int:
 
     from pathcast.pipeline import package_versions
 
+    if args.report:
+        from report_results import write_report
+
+        write_report([Path(p) for p in args.report], HERE / "RESULTS.md", Path(args.demo) if args.demo else None)
+        return 0
     rows = []
     out_json = Path(args.json) if args.json else Path(args.out) / f"results-{time.strftime('%Y%m%d-%H%M%S')}.json"
     out_json.parent.mkdir(parents=True, exist_ok=True)

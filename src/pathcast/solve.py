@@ -125,9 +125,15 @@ def handoff(handles: PyomoHandles, n_rows: int, n_cols: int):
     return lp, col_map, row_map
 
 
-def solve_highs(handles: PyomoHandles, n_rows: int, n_cols: int, options: SolverOptions) -> Solution:
+def solve_highs(handles: PyomoHandles, n_rows: int, n_cols: int, options: SolverOptions,
+                release_model: bool = True) -> Solution:
+    """Hand the model to HiGHS and solve it. With ``release_model`` (the default) the Pyomo model in ``handles`` is
+    released once HiGHS holds the LP (``handles.release()``), which lowers the peak memory of a run; pass False to
+    keep using the Pyomo model afterwards."""
     started = time.perf_counter()
     lp, col_map, row_map = handoff(handles, n_rows, n_cols)
+    if release_model:
+        handles.release()
     h = new_highs(log=options.log)
     highs_opts = highs_options_for(options.method, lp.num_row_)
     if options.time_limit_s:

@@ -43,6 +43,21 @@ class PyomoHandles:
         self.var_components = var_components if var_components is not None else []
         self.con_components = con_components if con_components is not None else []
 
+    def release(self) -> None:
+        """Drop the Pyomo model and the lists (HiGHS holds its own copy of the LP once it is passed): at national
+        size this frees a few hundred MB before the solve, whose working memory then comes on top of less."""
+        model = self.model
+        self.model = None
+        self.variables = []
+        self.constraints = []
+        self.var_components = []
+        self.con_components = []
+        if model is not None:
+            # a block refers to itself (so only the slow cycle collector would free it); deleting its components
+            # lets reference counting free them, and their rows and terms, at once
+            for component in list(model.component_objects(descend_into=False)):
+                model.del_component(component)
+
 
 def _add_variables(model: pyo.ConcreteModel, lp: LinearProgram) -> tuple[list, list]:
     flat_vars: list = []

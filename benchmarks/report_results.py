@@ -1,0 +1,103 @@
+"""Write benchmarks/RESULTS.md from the JSON files of run_benchmarks.py (``--report``)."""
+
+from __future__ import annotations
+
+import json
+import math
+from pathlib import Path
+
+__all__ = ["write_report", "NOTES"]
+
+# Narrative kept beside the tables; edited by hand after a run (the tables are regenerated).
+NOTES_FILE = Path(__file__).resolve().parent / "results_notes.md"
+NOTES = NOTES_FILE.read_text() if NOTES_FILE.exists() else ""
+
+
+def _size_key(size: str) -> tuple[int, int, int]:
+    return tuple(int(p) for p in size.split("x"))
+
+
+def _fit(rows: list[dict]) -> dict | None:
+    import numpy as np
+
+    techs = max(_size_key(r["size"])[2] for r in rows)
+    pts = [(_size_key(r["size"])[0] * _size_key(r["size"])[1], r["times"]["build_lp_s"] + r["times"]["build_pyomo_s"],
+            r["times"]["build_lp_s"] + r["times"]["build_pyomo_s"] + r["times"]["handoff_s"] + r["times"]["extract_s"])
+           for r in rows if _size_key(r["size"])[2] == techs]
+    if len(pts) < 2:
+        return None
+    x = np.log([p[0] for p in pts])
+    return {"technologies": techs, "points": len(pts),
+            "build": float(np.polyfit(x, np.log([p[1] for p in pts]), 1)[0]),
+            "overhead": float(np.polyfit(x, np.log([p[2] for p in pts]), 1)[0])}
+
+
+def write_report(files: list[Path], target: Path, demo: Path | None = None) -> None:
+    by_size: dict[str, dict] = {}
+    meta = {}
+    for f in files:
+        data = json.loads(f.read_text())
+        meta = {"cores": data["cores"], "versions": data["versions"]}
+        for row in data["rows"]:
+            by_size[row["size"]] = row
+    rows = sorted(by_size.values(), key=lambda r: _size_key(r["size"]))
+    fit = _fit(rows)
+    out = ["# Benchmark results", "",
+           "Produced by `benchmarks/run_benchmarks.py` (synthetic scenarios from `benchmarks/scenario_generator.py`) and "
+           "`python benchmarks/run_benchmarks.py --report <json files>`. Every number is from a run on this machine; "
+           "the machine is shared (other developers ran test suites at the same time), so single timings vary by "
+           "tens of per cent: compare the columns of one row, which were measured side by side, alternately.", "",
+           f"Machine: {meta.get('cores')} cores (CPU only). Versions: "
+           + ", ".join(f"{k} {v}" for k, v in meta.get("versions", {}).items()) + ".", "",
+           "## Pathcast end to end against the bare solver", "",
+           "Times in seconds, medians over *n* runs (one run where a run takes over a minute). *bare* = a fresh "
+           "highspy reads pathcast's MPS file and solves it with the same options (read + solve). *overhead* = "
+           "build LP + build Pyomo + hand-off + extraction. *defaults* = HiGHS with no options set on the same MPS "
+           "file; *speed-up* = defaults solve / bare solve with pathcast's options.", "",
+           "| size (years x hours x techs) | rows | columns | nonzeros | n | load | build LP | build Pyomo | hand-off "
+           "| solve | extract | pathcast total | bare read | bare solve | ratio total/bare | overhead [us/row] "
+           "| peak MB pathcast / bare | memory ratio | defaults solve | speed-up vs defaults | objective rel. diff |",
+           "|" + "---|" * 21]
+    for r in rows:
+        t = r["times"]
+        out.append(
+            f"| {r['size']} | {r['rows']:,} | {r['columns']:,} | {r['nonzeros']:,} | {r['runs']} | {t['load_s']:.2f} "
+            f"| {t['build_lp_s']:.2f} | {t['build_pyomo_s']:.2f} | {t['handoff_s']:.2f} | {t['solve_s']:.1f} "
+            f"| {t['extract_s']:.2f} | {t['total_s']:.1f} | {r['bare_read_s']:.2f} | {r['bare_solve_s']:.1f} "
+            f"| {r['ratio']:.3f} | {r['overhead_us_per_row']:.1f} | {r['peak_rss_mb']:.0f} / {r['bare_peak_rss_mb']:.0f} "
+            f"| {r['memory_ratio']:.2f} | {r.get('defaults_solve_s', math.nan):.1f} "
+            f"| {r.get('speedup_vs_defaults', math.nan):.2f} | {r['objective_rel_diff']:.1e} |")
+    out.append("")
+    if fit:
+        out.append(f"Build time (array LP + Pyomo) grows as (years x hours)^{fit['build']:.2f}, the whole modelling "
+                   f"overhead as (years x hours)^{fit['overhead']:.2f} (least-squares fit of the logs over "
+                   f"{fit['points']} sizes with {fit['technologies']} technologies).")
+        out.append("")
+    out += ["## Coefficient ranges (as HiGHS prints them, pathcast's options)", "",
+            "| size | matrix | cost | bound | rhs |", "|---|---|---|---|---|"]
+    for r in rows:
+        g = r.get("ranges_highs_log") or {}
+        cells = [f"[{g[k][0]:.0e}, {g[k][1]:.0e}]" if k in g else "-" for k in ("matrix", "cost", "bound", "rhs")]
+        out.append(f"| {r['size']} | " + " | ".join(cells) + " |")
+    out.append("")
+    method_rows = [r for r in rows if r.get("methods")]
+    if method_rows:
+        out += ["## Solver methods on the same MPS file (one run each)", "",
+                "Duals compared with pathcast's own vertex solution: carbon = relative difference of the carbon-budget "
+                "dual; prices = largest difference of an hourly balance dual relative to the largest one.", "",
+                "| size | method | options | status | solve [s] | IPM / crossover / simplex iterations | duals valid "
+                "| carbon dual diff | price diff |", "|---|---|---|---|---|---|---|---|---|"]
+        for r in method_rows:
+            for name, m in r["methods"].items():
+                it = m["iterations"]
+                fmt = lambda v: "-" if v is None else f"{v:.1e}"  # noqa: E731
+                out.append(f"| {r['size']} | {name} | `{json.dumps(m['options'])}` | {m['status']} | {m['solve_s']:.1f} "
+                           f"| {it['ipm']} / {it['crossover']} / {it['simplex']} | {m.get('dual_valid')} "
+                           f"| {fmt(m.get('carbon_dual_rel_diff'))} | {fmt(m.get('price_max_rel_diff'))} |")
+        out.append("")
+    if demo and demo.exists():
+        d = json.loads(demo.read_text())
+        out += ["## Demo budget case", "", d.get("text", ""), ""]
+    if NOTES:
+        out += [NOTES.strip(), ""]
+    target.write_text("\n".join(out))
