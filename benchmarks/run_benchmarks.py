@@ -73,6 +73,8 @@ def worker_pathcast(args: argparse.Namespace) -> dict:
 
     from pathcast.pipeline import run_scenario
 
+    if args.prepare_only:
+        return prepare_mps(args)
     started = time.perf_counter()
     run = run_scenario(args.scenario, solver={"method": args.method, "time_limit_s": args.time_limit})
     wall = time.perf_counter() - started
@@ -81,6 +83,12 @@ def worker_pathcast(args: argparse.Namespace) -> dict:
     out = {"kind": "pathcast", "times": run.times.as_dict(), "wall_s": wall, "peak_rss_mb": peak,
            "rows": sol.rows, "columns": sol.columns, "nonzeros": sol.nonzeros, "objective": sol.objective,
            "status": sol.status, "method": sol.method, "options": sol.options, "iterations": sol.iterations}
+    offsets = run.model.lp.row_offsets()
+    blocks = run.model.lp.row_blocks
+    if "carbon_budget" in blocks:
+        out["carbon_dual"] = float(sol.row_dual[offsets["carbon_budget"]])
+    balance = offsets["electricity_balance"] + np.arange(blocks["electricity_balance"].size)
+    out["balance_duals"] = sol.row_dual[balance].tolist()
     if args.write_mps:
         h = sol.highs
         lp = h.getLp()
@@ -100,6 +108,34 @@ def worker_pathcast(args: argparse.Namespace) -> dict:
                                        "electricity_balance": [float(sol.row_dual[i]) for i in balance]}}
         Path(str(args.write_mps) + ".rows.json").write_text(json.dumps(checked))
     return out
+
+
+def prepare_mps(args: argparse.Namespace) -> dict:
+    """Build the LP through pathcast's own path (load, array LP, Pyomo, hand-off), pass it to HiGHS and write the
+    MPS file and the positions of the checked rows, without solving (for --concurrent)."""
+    import numpy as np
+
+    from pathcast.model.build import build_linear_program
+    from pathcast.model.pyomo_model import to_pyomo
+    from pathcast.scenario.inputs import prepare_inputs
+    from pathcast.scenario.loader import load_scenario
+    from pathcast.solve import handoff, new_highs
+
+    model = build_linear_program(prepare_inputs(load_scenario(args.scenario).scenario))
+    matrix, _, _ = model.lp.matrix()
+    lp, _, row_map = handoff(to_pyomo(model.lp), *matrix.shape)
+    h = new_highs()
+    h.passModel(lp)
+    h.writeModel(str(args.write_mps))
+    inverse = np.full(matrix.shape[0], -1, dtype=np.int64)
+    inverse[row_map] = np.arange(len(row_map))
+    offsets, blocks = model.lp.row_offsets(), model.lp.row_blocks
+    budget = [int(offsets["carbon_budget"])] if "carbon_budget" in blocks else []
+    balance = (offsets["electricity_balance"] + np.arange(blocks["electricity_balance"].size)).tolist()
+    checked = {"carbon_budget": [int(inverse[i]) for i in budget],
+               "electricity_balance": [int(inverse[i]) for i in balance]}
+    Path(str(args.write_mps) + ".rows.json").write_text(json.dumps(checked))
+    return {"kind": "prepare", "rows": int(lp.num_row_), "ranges": _lp_ranges(lp)}
 
 
 def worker_bare(args: argparse.Namespace) -> dict:
@@ -135,7 +171,13 @@ def worker_bare(args: argparse.Namespace) -> dict:
            "max_primal_infeasibility": float(info.max_primal_infeasibility),
            "max_dual_infeasibility": float(info.max_dual_infeasibility)}
     rows_file = Path(str(args.mps) + ".rows.json")
-    if args.check_duals and rows_file.exists():
+    if rows_file.exists() and len(np.asarray(h.getSolution().row_dual)) == out["rows"]:
+        checked = json.loads(rows_file.read_text())
+        raw = np.asarray(h.getSolution().row_dual)
+        out["dual_valid"] = bool(h.getSolution().dual_valid)
+        out["carbon_dual"] = float(raw[checked["carbon_budget"][0]]) if checked["carbon_budget"] else None
+        out["balance_duals"] = raw[checked["electricity_balance"]].tolist()
+    if args.check_duals and rows_file.exists() and "reference_duals" in json.loads(rows_file.read_text()):
         checked = json.loads(rows_file.read_text())
         sol = h.getSolution()
         out["dual_valid"] = bool(sol.dual_valid)
@@ -260,6 +302,76 @@ def measure_size(size: str, args: argparse.Namespace) -> dict:
     return row
 
 
+def _dual_diffs(result: dict, reference: dict) -> dict:
+    """Carbon-budget dual and hourly balance duals of ``result`` against ``reference`` (relative)."""
+    import numpy as np
+
+    out = {"dual_valid": result.get("dual_valid", True)}
+    if result.get("carbon_dual") is not None and reference.get("carbon_dual") is not None:
+        out["carbon_dual_rel_diff"] = abs(result["carbon_dual"] - reference["carbon_dual"]) / max(
+            abs(reference["carbon_dual"]), 1e-12)
+    if result.get("balance_duals") and reference.get("balance_duals"):
+        a, b = np.asarray(result["balance_duals"]), np.asarray(reference["balance_duals"])
+        out["price_max_rel_diff"] = float(np.abs(a - b).max() / max(float(np.abs(b).max()), 1e-12))
+    return out
+
+
+def measure_concurrent(size: str, args: argparse.Namespace) -> dict:
+    """One run of pathcast end to end, the bare solver with pathcast's options and HiGHS defaults, started at the
+    same moment (each single-threaded HiGHS; on 2 cores all three share the machine alike). For the national size,
+    where one solve takes many minutes."""
+    from pathcast.solve import highs_options_for
+    from scenario_generator import write_scenario
+
+    out_dir = Path(args.out)
+    scenario = write_scenario(out_dir / "scenarios", size)
+    mps = out_dir / "mps" / (scenario.stem + ".mps")
+    mps.parent.mkdir(parents=True, exist_ok=True)
+    logs = out_dir / "logs"
+    logs.mkdir(parents=True, exist_ok=True)
+    prep = _run_worker(["--worker", "pathcast", "--prepare-only", "--scenario", str(scenario), "--write-mps", str(mps)])
+    common = ["--time-limit", str(args.time_limit)] if args.time_limit else []
+    chosen = highs_options_for(args.method, prep["rows"])
+    cmds = {
+        "pathcast": ["--worker", "pathcast", "--scenario", str(scenario), "--method", args.method, *common],
+        "bare": ["--worker", "bare", "--mps", str(mps), "--options", json.dumps(chosen),
+                 "--log-file", str(logs / f"{scenario.stem}.chosen.0.log"), *common],
+        "defaults": ["--worker", "bare", "--mps", str(mps), "--options", "{}",
+                     "--log-file", str(logs / f"{scenario.stem}.defaults.0.log"), *common],
+    }
+    procs = {k: subprocess.Popen([sys.executable, str(Path(__file__).resolve()), *v], stdout=subprocess.PIPE,
+                                 stderr=subprocess.PIPE, text=True) for k, v in cmds.items()}
+    results = {}
+    for k, p in procs.items():
+        stdout, stderr = p.communicate()
+        if p.returncode != 0:
+            raise RuntimeError(f"worker {k} failed:\n{stderr[-3000:]}")
+        results[k] = json.loads(stdout.strip().splitlines()[-1])
+        (logs / f"{scenario.stem}.{k}.json").write_text(json.dumps(results[k]))
+        print(f"[{time.strftime('%H:%M:%S')}] {size}: {k} done", file=sys.stderr, flush=True)
+    first, bare, dflt = results["pathcast"], results["bare"], results["defaults"]
+    times = first["times"]
+    overhead = times["build_lp_s"] + times["build_pyomo_s"] + times["handoff_s"] + times["extract_s"]
+    row = {
+        "size": size, "rows": first["rows"], "columns": first["columns"], "nonzeros": first["nonzeros"],
+        "runs": 1, "concurrent": True, "method": args.method, "options": chosen, "times": times,
+        "pathcast_total_s": times["total_s"], "bare_read_s": bare["read_s"], "bare_solve_s": bare["solve_s"],
+        "bare_total_s": bare["read_s"] + bare["solve_s"], "ratio": times["total_s"] / (bare["read_s"] + bare["solve_s"]),
+        "overhead_s": overhead, "overhead_us_per_row": overhead * 1e6 / first["rows"],
+        "peak_rss_mb": first["peak_rss_mb"], "bare_peak_rss_mb": bare["peak_rss_mb"],
+        "objective": first["objective"], "bare_objective": bare["objective"],
+        "objective_rel_diff": abs(first["objective"] - bare["objective"]) / max(abs(bare["objective"]), 1e-12),
+        "ranges_lp": prep["ranges"], "ranges_highs_log": _parse_ranges(logs / f"{scenario.stem}.chosen.0.log"),
+        "chosen_duals": _dual_diffs(bare, first), "methods": {},
+        "defaults_solve_s": dflt["solve_s"], "defaults_status": dflt["status"],
+        "speedup_vs_defaults": dflt["solve_s"] / bare["solve_s"],
+        "defaults_objective_rel_diff": abs(dflt["objective"] - bare["objective"]) / max(abs(bare["objective"]), 1e-12),
+        "defaults_duals": _dual_diffs(dflt, first),
+    }
+    row["memory_ratio"] = row["peak_rss_mb"] / row["bare_peak_rss_mb"]
+    return row
+
+
 def build_exponent(rows: list[dict]) -> dict | None:
     """Least-squares slope of log(build time) against log(years x hours) over the sizes with the most technologies."""
     import numpy as np
@@ -287,6 +399,8 @@ def main(argv: list[str] | None = None) -> int:
     parser.add_argument("--threads", type=int, default=None, help="HiGHS threads for --methods runs")
     parser.add_argument("--time-limit", type=float, default=None, help="HiGHS time limit per solve [s]")
     parser.add_argument("--no-defaults", action="store_true", help="skip the HiGHS-defaults comparison")
+    parser.add_argument("--concurrent", action="store_true", help="one run each, pathcast, bare and defaults started "
+                        "together (for sizes whose solves take many minutes)")
     parser.add_argument("--out", default=str(HERE / "out"), help="folder for scenarios, MPS files, logs and JSON")
     parser.add_argument("--json", default=None, help="file for the result rows (default <out>/results-<time>.json)")
     parser.add_argument("--report", nargs="+", metavar="JSON", default=None,
@@ -295,6 +409,7 @@ def main(argv: list[str] | None = None) -> int:
     parser.add_argument("--worker", choices=("pathcast", "bare"), help=argparse.SUPPRESS)
     parser.add_argument("--scenario", help=argparse.SUPPRESS)
     parser.add_argument("--write-mps", help=argparse.SUPPRESS)
+    parser.add_argument("--prepare-only", action="store_true", help=argparse.SUPPRESS)
     parser.add_argument("--mps", help=argparse.SUPPRESS)
     parser.add_argument("--options", default="{}", help=argparse.SUPPRESS)
     parser.add_argument("--check-duals", action="store_true", help=argparse.SUPPRESS)
@@ -319,7 +434,7 @@ def main(argv: list[str] | None = None) -> int:
     out_json = Path(args.json) if args.json else Path(args.out) / f"results-{time.strftime('%Y%m%d-%H%M%S')}.json"
     out_json.parent.mkdir(parents=True, exist_ok=True)
     for size in [s for s in args.sizes.split(",") if s]:
-        rows.append(measure_size(size, args))
+        rows.append(measure_concurrent(size, args) if args.concurrent else measure_size(size, args))
         report = {"cores": os.cpu_count(), "versions": package_versions(), "rows": rows,
                   "build_exponent": build_exponent(rows)}
         out_json.write_text(json.dumps(report, indent=1))
