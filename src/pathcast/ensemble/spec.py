@@ -45,7 +45,13 @@ from pydantic import (
 )
 
 from ..errors import ScenarioError, did_you_mean
-from ..scenario.loader import LoadedScenario, load_scenario_mapping, located_error, read_scenario_mapping
+from ..scenario.loader import (
+    LoadedScenario,
+    load_scenario_mapping,
+    located_error,
+    read_scenario_mapping,
+    value_at,
+)
 
 __all__ = [
     "EnsembleFile",
@@ -360,7 +366,7 @@ def _explain(error: ValidationError, data: dict, path: Path) -> ScenarioError:
         loc = loc[:-1]
         return located_error(path, loc, loc[-1], "an input label of letters, digits and underscores, starting with a "
                              "letter")
-    value = _value_at(data, loc)
+    value = value_at(data, loc)
     if kind == "extra_forbidden":
         if tag is not None:
             choices = sorted(_aliases(_TAG_MODELS[tag]))
@@ -375,7 +381,7 @@ def _explain(error: ValidationError, data: dict, path: Path) -> ScenarioError:
     if kind == "no_distribution" and isinstance(value, dict) and "distribution" in value:
         kind = "union_tag_invalid"
     if kind == "union_tag_invalid":
-        name = _value_at(data, loc + ("distribution",))
+        name = value_at(data, loc + ("distribution",))
         choices = list(DISTRIBUTIONS)
         return located_error(path, loc + ("distribution",), name,
                              f"one of {choices}{did_you_mean(str(name), choices)}")
@@ -398,11 +404,3 @@ def _aliases(model: type[BaseModel]) -> list[str]:
     return [info.alias or name for name, info in model.model_fields.items()]
 
 
-def _value_at(data: Any, loc: tuple) -> Any:
-    node = data
-    for part in loc:
-        try:
-            node = node[part]
-        except (KeyError, IndexError, TypeError):
-            return None
-    return node

@@ -173,6 +173,16 @@ def _existing(t, years: np.ndarray, attribute: str, scale: float) -> np.ndarray:
     return out
 
 
+def _common(t, years: np.ndarray, rate: float) -> dict:
+    """The fields every generator, storage and converter shares, in internal units."""
+    min_b, max_b, max_t = _limits(t, years)
+    return dict(
+        capex=_capex_array(t.capex, years), fixed_om=t.fixed_om, variable_om=t.variable_om / 1000.0,
+        lifetime=t.lifetime, crf=capital_recovery_factor(t.cost_of_capital if t.cost_of_capital is not None else rate, t.lifetime),
+        existing_gw=_existing(t, years, "capacity_mw", 1e-3), min_build_gw=min_b, max_build_gw=max_b, max_total_gw=max_t,
+    )
+
+
 def prepare_inputs(s: Scenario) -> ModelInputs:
     """Resolve paths, growth, learning curves and profiles into arrays (no model objects are built here)."""
     meta = s.metadata
@@ -208,35 +218,20 @@ def prepare_inputs(s: Scenario) -> ModelInputs:
         if credit is None:
             credit = 0.0 if profile_driven else float(availability.mean())
         clean = g.clean if g.clean is not None else (g.fuel is None or ef.get(g.fuel, 0.0) == 0.0)
-        min_b, max_b, max_t = _limits(g, years)
         techs.append(TechnologyInputs(
-            name=name, kind="generator", capex=_capex_array(g.capex, years), fixed_om=g.fixed_om,
-            variable_om=g.variable_om / 1000.0, lifetime=g.lifetime,
-            crf=capital_recovery_factor(g.cost_of_capital if g.cost_of_capital is not None else rate, g.lifetime),
-            existing_gw=_existing(g, years, "capacity_mw", 1e-3), min_build_gw=min_b, max_build_gw=max_b, max_total_gw=max_t,
-            capacity_credit=credit, fuel=g.fuel, efficiency=efficiency, availability=availability, clean=clean,
+            name=name, kind="generator", **_common(g, years, rate), capacity_credit=credit, fuel=g.fuel, efficiency=efficiency, availability=availability, clean=clean,
         ))
     for name, st in s.technologies.storage.items():
-        min_b, max_b, max_t = _limits(st, years)
         one_way = math.sqrt(st.round_trip_efficiency)
         techs.append(TechnologyInputs(
-            name=name, kind="storage", capex=_capex_array(st.capex, years), fixed_om=st.fixed_om,
-            variable_om=st.variable_om / 1000.0, lifetime=st.lifetime,
-            crf=capital_recovery_factor(st.cost_of_capital if st.cost_of_capital is not None else rate, st.lifetime),
-            existing_gw=_existing(st, years, "capacity_mw", 1e-3), min_build_gw=min_b, max_build_gw=max_b, max_total_gw=max_t,
-            capacity_credit=st.capacity_credit, energy_capex=_capex_array(st.energy_capex, years),
+            name=name, kind="storage", **_common(st, years, rate), capacity_credit=st.capacity_credit, energy_capex=_capex_array(st.energy_capex, years),
             energy_fixed_om=st.energy_fixed_om, existing_energy_gwh=_existing(st, years, "energy_mwh", 1e-3),
             charge_efficiency=one_way, discharge_efficiency=one_way, min_duration_h=st.min_duration_hours,
             max_duration_h=st.max_duration_hours if st.max_duration_hours is not None else math.inf, clean=True,
         ))
     for name, c in s.technologies.converters.items():
-        min_b, max_b, max_t = _limits(c, years)
         techs.append(TechnologyInputs(
-            name=name, kind="converter", capex=_capex_array(c.capex, years), fixed_om=c.fixed_om,
-            variable_om=c.variable_om / 1000.0, lifetime=c.lifetime,
-            crf=capital_recovery_factor(c.cost_of_capital if c.cost_of_capital is not None else rate, c.lifetime),
-            existing_gw=_existing(c, years, "capacity_mw", 1e-3), min_build_gw=min_b, max_build_gw=max_b, max_total_gw=max_t,
-            input=c.input, output=c.output, efficiency=c.efficiency,
+            name=name, kind="converter", **_common(c, years, rate), input=c.input, output=c.output, efficiency=c.efficiency,
             availability=np.full((len(days), hours), c.availability) if c.input == ELECTRICITY else None,
             converter_availability=c.availability, process_emission_factor=c.process_emission_factor,
         ))

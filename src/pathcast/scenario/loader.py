@@ -19,7 +19,7 @@ from pydantic import BaseModel, ValidationError
 from ..errors import ScenarioError, did_you_mean
 from .schema import Scenario
 
-__all__ = ["load_scenario", "LoadedScenario", "located_error", "read_yaml_with_extends", "read_scenario_mapping",
+__all__ = ["load_scenario", "LoadedScenario", "located_error", "read_yaml_with_extends", "value_at", "read_scenario_mapping",
            "load_scenario_mapping"]
 
 Provenance = dict[tuple, Path]
@@ -230,7 +230,7 @@ def _explain(error: ValidationError, raw: dict, provenance: Provenance, default:
         return located_error(file, loc, name, f"one of the fields {choices}{hint}")
     if kind == "missing":
         return located_error(file, loc[:-1] or "(top level)", "nothing", f"the required field {loc[-1]!r}")
-    value = _value_at(raw, loc)
+    value = value_at(raw, loc)
     message = first["msg"]
     for prefix in ("Value error, ", "Assertion failed, "):
         message = message.removeprefix(prefix)
@@ -242,7 +242,8 @@ def _explain(error: ValidationError, raw: dict, provenance: Provenance, default:
     return located_error(file, loc or "(top level)", value, message)
 
 
-def _value_at(raw: Any, loc: tuple) -> Any:
+def value_at(raw: Any, loc: tuple) -> Any:
+    """The value at a field path of a raw mapping, or None where the path does not exist."""
     node = raw
     for part in loc:
         try:
