@@ -1,10 +1,16 @@
 """The planning memo: findings with the headline numbers, the headline (or comparison) table, figures with captions,
-the assumptions, the cautions and the provenance of one or several runs.
+the assumptions, the cautions and the provenance of one or several runs, and a robustness section per ensemble.
 
 Compute, then render: :func:`build_memo` turns RunResults (and their assumption tables) into a :class:`Memo` of
 blocks (headings, paragraphs, tables, figures); :func:`render_markdown` and :func:`render_html` render it;
 :func:`write_memo` writes ``memo.md``, a self-contained ``memo.html`` (figures embedded as base64 PNG: no external
 files, no network) and ``figures/*.png|svg`` into a folder, atomically.
+
+An ensemble (:class:`MemoEnsemble`, read from a folder of ``pathcast ensemble``) adds a sentence to the findings (the
+probability of staying within the carbon budget and the 5-95 % range of the total discounted system cost), its
+"Robustness across an ensemble" section (the Markdown of :func:`pathcast.ensemble.ensemble_robustness_section`,
+turned into blocks) with the ensemble's own PNG figures (copied, :class:`ImageFile`) and a provenance row. A memo of
+ensembles only has their findings, robustness sections, the cautions and the provenance.
 
 Numbers are rounded for display by :func:`format_value`: at least three significant digits (thousands separators
 from 1,000, no decimals there; two decimals from 1 to 100; three below 1); years and counts as whole numbers.
@@ -15,6 +21,7 @@ from __future__ import annotations
 import base64
 import html
 import math
+import re
 from collections.abc import Mapping, Sequence
 from dataclasses import dataclass, field
 from pathlib import Path
@@ -35,8 +42,8 @@ from .console import CAUTION
 from .figures import OVERLAY_FIGURES, SCENARIO_FIGURES, save_figure
 
 __all__ = [
-    "MemoInput", "Memo", "Heading", "Paragraph", "Table", "FigureBlock", "build_memo", "render_markdown",
-    "render_html", "write_memo", "format_value", "headline_rows", "MISSING",
+    "MemoInput", "MemoEnsemble", "Memo", "Heading", "Paragraph", "Table", "FigureBlock", "ImageFile", "build_memo",
+    "render_markdown", "render_html", "write_memo", "format_value", "headline_rows", "section_blocks", "MISSING",
 ]
 
 MISSING = "n/a"  # shown where a value does not apply (no budget, metric of another scenario's technology, ...)
@@ -58,6 +65,7 @@ class Heading:
 class Paragraph:
     text: str
     kind: str = "text"  # text | notice (illustrative numbers) | caution
+    markup: bool = False  # True: the text holds Markdown **bold** and `code` (rendered as such in HTML)
 
 
 @dataclass(frozen=True)
@@ -75,6 +83,15 @@ class FigureBlock:
 
 
 @dataclass(frozen=True)
+class ImageFile:
+    """A figure drawn earlier as a PNG file (an ensemble's), copied into figures/ as ``<name>.png``."""
+
+    name: str  # file stem under figures/
+    source: Path
+    caption: str = ""
+
+
+@dataclass(frozen=True)
 class Memo:
     title: str
     blocks: tuple
@@ -88,6 +105,39 @@ class MemoInput:
     result: RunResult
     assumptions: pd.DataFrame
     assumptions_note: str = ""
+
+
+@dataclass(frozen=True)
+class MemoEnsemble:
+    """One ensemble folder for the memo: its robustness section (Markdown of
+    :func:`pathcast.ensemble.ensemble_robustness_section`, figure links to the PNG files in ``figure_files``), the
+    numbers its finding quotes and its provenance. Costs in million currency units of the price year, budgets in
+    MtCO2; ``probability_within_budget`` is a share (0-1), NaN when no member has a carbon budget."""
+
+    folder: Path
+    name: str
+    section: str
+    base: str  # the base scenario file
+    base_hash: str  # its input hash (LoadedScenario.input_hash), as in a result folder's manifest
+    file: str  # the ensemble file
+    design: str
+    inputs: tuple[str, ...]
+    members: int
+    solved: int
+    infeasible: int
+    failed_other: int  # failed for another reason than infeasibility (invalid member, solver status, worker lost)
+    pending: int
+    within_budget: int
+    probability_within_budget: float
+    reference_budget_mt: float | None
+    cost_p5: float
+    cost_p50: float
+    cost_p95: float
+    currency: str
+    price_year: object
+    figure_files: Mapping[str, Path] = field(default_factory=dict)  # figure stem -> PNG under the ensemble's figures/
+    pathcast_version: str = ""
+    illustrative: bool = False
 
 
 # --- numbers ---------------------------------------------------------------------------------------------------------
@@ -266,6 +316,115 @@ def _nan(value: object) -> bool:
         return False
 
 
+def _ensemble_finding(ensemble: MemoEnsemble, around: str) -> str:
+    """The ensemble's sentences of the findings; ``around`` names its base ("this scenario" or the file)."""
+    e = ensemble
+    other = f", {e.failed_other} failed otherwise" if e.failed_other else ""
+    pending = f", {e.pending} not yet run" if e.pending else ""
+    text = [f"Across the ensemble {e.name} ({e.members} members varying {len(e.inputs)} "
+            f"input{'s' if len(e.inputs) != 1 else ''} around {around}; {e.solved} solved, {e.infeasible} "
+            f"infeasible{other}{pending}),"]
+    counted = e.solved + e.infeasible
+    if not _nan(e.probability_within_budget) and counted:
+        budget = (f"the {_number(float(e.reference_budget_mt))} MtCO2 budget" if e.reference_budget_mt is not None
+                  else "the carbon budget")
+        text.append(f"the probability of staying within {budget} is {100 * float(e.probability_within_budget):.0f} % "
+                    f"({e.within_budget} of {counted} members)")
+    else:
+        text.append("no member has a carbon budget, so there is no probability of staying within one")
+    if not any(_nan(v) for v in (e.cost_p5, e.cost_p95)):
+        money = f"million {e.currency}" + (f" of {e.price_year}" if e.price_year else "")
+        text[-1] += (f", and the total discounted system cost ranges from {_number(e.cost_p5)} to "
+                     f"{_number(e.cost_p95)} {money} (5-95 %, median {_number(e.cost_p50)}).")
+    else:
+        text[-1] += "; no member solved, so there is no range of the total cost."
+    return " ".join(text)
+
+
+_IMAGE = re.compile(r"^!\[(?P<alt>[^\]]*)\]\((?P<path>[^)]+)\)$")
+_RULE = re.compile(r"^\|[\s:|-]+\|$")
+_ENSEMBLE_CAPTIONS = {
+    "emissions_fan": "Yearly CO2 emissions [MtCO2/yr] and cumulative CO2 in the budget period [MtCO2] across the "
+                     "members: median, 25-75 % and 5-95 % bands, against the budget.",
+    "capacity_fan": "Capacity in service by technology [GW] across the members: median, 25-75 % and 5-95 % bands, one "
+                    "panel per technology.",
+    "distributions": "Distributions over the solved members of the total discounted system cost and of the required "
+                     "reduction rate, with the median, the 5 % and 95 % percentiles and the base scenario.",
+    "budget_probability": "Budget margin (budget minus emissions in the budget period) [MtCO2] across the solved "
+                          "members and the probability of staying within the carbon budget.",
+    "tornado": "One-at-a-time sensitivities: change of the total cost and of cumulative CO2 from the base scenario at "
+               "each input's low and high value.",
+}
+
+
+def _cells(line: str) -> tuple[str, ...]:
+    return tuple(c.strip().replace("\\|", "|") for c in re.split(r"(?<!\\)\|", line.strip())[1:-1])
+
+
+def section_blocks(markdown: str, ensemble: MemoEnsemble, prefix: str, first_number: int) -> list:
+    """Blocks of an ensemble's robustness section (Markdown with headings, paragraphs, pipe tables and image lines):
+    each linked figure becomes an :class:`ImageFile` named ``<prefix>_<stem>`` with a numbered caption from
+    ``first_number``, followed by the ensemble's other figures; a missing figure file becomes a note."""
+    blocks: list = []
+    number = first_number - 1
+    linked: set[str] = set()
+    paragraph: list[str] = []
+    table: list[str] = []
+    last_image = None
+
+    def flush() -> None:
+        if paragraph:
+            blocks.append(Paragraph(" ".join(paragraph), markup=True))
+            paragraph.clear()
+        if table:
+            rows = [_cells(line) for line in table if not _RULE.match(line.strip())]
+            blocks.append(Table(rows[0], tuple(rows[1:])))
+            table.clear()
+
+    for raw in markdown.splitlines():
+        line = raw.strip()
+        image = _IMAGE.match(line)
+        if not line or line.startswith("#") or image or (line.startswith("|") and not table and paragraph):
+            flush()
+        if not line:
+            continue
+        if line.startswith("#"):
+            level = len(line) - len(line.lstrip("#"))
+            blocks.append(Heading(line[level:].strip(), level))
+        elif image:
+            source = Path(image["path"])
+            linked.add(source.stem)
+            if source.is_file():
+                number += 1
+                caption = _ENSEMBLE_CAPTIONS.get(source.stem, image["alt"].rstrip(".") + ".")
+                blocks.append(ImageFile(f"{prefix}_{source.stem}", source,
+                                        f"Figure {number}. Ensemble {ensemble.name}: {caption}"))
+            else:
+                blocks.append(Paragraph(f"(The figure {source.name} is not in {source.parent}: the ensemble was run "
+                                        "without figures; run 'pathcast ensemble' again without --no-figures to draw "
+                                        "it.)"))
+            last_image = len(blocks)
+        elif line.startswith("|"):
+            table.append(line)
+        else:
+            if table:
+                flush()
+            paragraph.append(line)
+    flush()
+    extra = []
+    known = list(_ENSEMBLE_CAPTIONS)
+    order = sorted(ensemble.figure_files, key=lambda stem: (known.index(stem) if stem in known else len(known), stem))
+    for stem in order:
+        source = ensemble.figure_files[stem]
+        if stem in linked:
+            continue
+        number += 1
+        caption = _ENSEMBLE_CAPTIONS.get(stem, f"figure {stem} of the ensemble folder.")
+        extra.append(ImageFile(f"{prefix}_{stem}", Path(source), f"Figure {number}. Ensemble {ensemble.name}: {caption}"))
+    at = last_image if last_image is not None else len(blocks)
+    return blocks[:at] + extra + blocks[at:]
+
+
 # --- captions --------------------------------------------------------------------------------------------------------
 
 _SCENARIO_CAPTIONS = {
@@ -331,62 +490,100 @@ def _assumption_tables(inputs: Sequence[MemoInput], labels: list[str]) -> list:
 
 # --- build -----------------------------------------------------------------------------------------------------------
 
-def build_memo(inputs: Sequence[MemoInput]) -> Memo:
-    """The memo of one or several runs (the first is the reference for abatement costs and assumption changes)."""
-    inputs = list(inputs)
+def build_memo(inputs: Sequence[MemoInput], ensembles: Sequence[MemoEnsemble] = ()) -> Memo:
+    """The memo of one or several runs (the first is the reference for abatement costs and assumption changes) and of
+    any ensembles; with ensembles only, it has their findings, robustness sections, the cautions and the provenance."""
+    inputs, ensembles = list(inputs), list(ensembles)
+    if not inputs and not ensembles:
+        raise ValueError("build_memo needs at least one run or one ensemble")
     results = [i.result for i in inputs]
-    labels = scenario_labels(results)
-    table = headline_rows(results)
-    first_meta = results[0].metadata
+    labels = scenario_labels(results) if results else []
+    table = headline_rows(results) if results else None
+    first_meta = results[0].metadata if results else {}
     country = first_meta.get("country") or ""
-    title = "Decarbonisation pathway memo" + (f": {country}" if country else "") + " (" + ", ".join(labels) + ")"
+    named = labels + [f"ensemble {e.name}" for e in ensembles]
+    title = "Decarbonisation pathway memo" + (f": {country}" if country else "") + " (" + ", ".join(named) + ")"
     blocks: list = []
     illustrative = [label for r, label in zip(results, labels, strict=True) if r.metadata.get("illustrative")]
+    illustrative += [f"ensemble {e.name}" for e in ensembles if e.illustrative]
     if illustrative:
-        who = "all scenarios" if len(illustrative) == len(results) else ", ".join(illustrative)
+        who = "all scenarios" if len(illustrative) == len(named) else ", ".join(illustrative)
         blocks.append(Paragraph(f"Illustrative numbers: the inputs of {who} are marked illustrative (invented or "
                                 "rounded for demonstration); the results show how the pathway responds to them and are "
                                 "no estimate for any real country or system.", kind="notice"))
-    blocks.append(Heading("Finding" if len(results) == 1 else "Findings"))
-    for result, label in zip(results, labels, strict=True):
-        blocks.append(Paragraph(_finding(result, label, table[label], results)))
-    blocks.append(Heading("Headline figures" if len(results) == 1 else "Comparison of the scenarios"))
-    caption = ("Headline figures of the run (every number of summary.json, with the budget and reduction-rate "
-               "analytics); money in million of the currency of the price year, rates in %/yr."
-               if len(results) == 1 else
-               f"Side by side (every number of each summary.json, with the budget and reduction-rate analytics); money "
-               f"in million of the currency of the price year, rates in %/yr; abatement cost against {labels[0]}.")
-    blocks.append(_table_from(table, caption))
-    blocks.append(Heading("Figures"))
+    findings = [_finding(result, label, table[label], results) for result, label in zip(results, labels, strict=True)]
+    for ensemble in ensembles:
+        hashes = [str(r.manifest.get("input_hash", "")) for r in results]
+        if ensemble.base_hash and ensemble.base_hash in hashes:
+            at = hashes.index(ensemble.base_hash)
+            findings[at] += " " + _ensemble_finding(ensemble, "this scenario")
+        else:
+            findings.append(_ensemble_finding(ensemble, f"the base scenario {Path(ensemble.base).name}"))
+    blocks.append(Heading("Finding" if len(findings) == 1 else "Findings"))
+    blocks.extend(Paragraph(text) for text in findings)
     number = 0
-    for result, label in zip(results, labels, strict=True):
+    if results:
+        blocks.append(Heading("Headline figures" if len(results) == 1 else "Comparison of the scenarios"))
+        caption = ("Headline figures of the run (every number of summary.json, with the budget and reduction-rate "
+                   "analytics); money in million of the currency of the price year, rates in %/yr."
+                   if len(results) == 1 else
+                   f"Side by side (every number of each summary.json, with the budget and reduction-rate analytics); "
+                   f"money in million of the currency of the price year, rates in %/yr; abatement cost against "
+                   f"{labels[0]}.")
+        blocks.append(_table_from(table, caption))
+        blocks.append(Heading("Figures"))
+        for result, label in zip(results, labels, strict=True):
+            if len(results) > 1:
+                blocks.append(Heading(label, 3))
+            for name, draw in SCENARIO_FIGURES.items():
+                number += 1
+                blocks.append(FigureBlock(f"{_slug(label)}_{name}", draw(result),
+                                          f"Figure {number}. {label}: {_SCENARIO_CAPTIONS[name]}"))
         if len(results) > 1:
-            blocks.append(Heading(label, 3))
-        for name, draw in SCENARIO_FIGURES.items():
+            blocks.append(Heading("All scenarios", 3))
+        for name, draw in OVERLAY_FIGURES.items():
             number += 1
-            blocks.append(FigureBlock(f"{_slug(label)}_{name}", draw(result),
-                                      f"Figure {number}. {label}: {_SCENARIO_CAPTIONS[name]}"))
-    if len(results) > 1:
-        blocks.append(Heading("All scenarios", 3))
-    for name, draw in OVERLAY_FIGURES.items():
-        number += 1
-        blocks.append(FigureBlock(name, draw(results), f"Figure {number}. {_OVERLAY_CAPTIONS[name]}"))
-    blocks.append(Heading("Assumptions"))
-    blocks.extend(_assumption_tables(inputs, labels))
+            blocks.append(FigureBlock(name, draw(results), f"Figure {number}. {_OVERLAY_CAPTIONS[name]}"))
+    else:
+        blocks.append(Paragraph("This memo covers ensembles only: the pathway, headline figures, figures and "
+                                "assumptions of a base scenario are shown when its scenario file or result folder is "
+                                "given as well."))
+    prefixes: set[str] = set()
+    for ensemble in ensembles:
+        prefix = stem = f"ensemble_{_slug(ensemble.name)}"
+        copy = 1
+        while prefix in prefixes:  # the same ensemble name twice: figures/ensemble_<name>_2_*.png
+            copy += 1
+            prefix = f"{stem}_{copy}"
+        prefixes.add(prefix)
+        section = section_blocks(ensemble.section, ensemble, prefix, number + 1)
+        number += sum(isinstance(b, ImageFile) for b in section)
+        blocks.extend(section)
+    if results:
+        blocks.append(Heading("Assumptions"))
+        blocks.extend(_assumption_tables(inputs, labels))
     blocks.append(Heading("Cautions"))
     blocks.append(Paragraph(CAUTION, kind="caution"))
     blocks.append(Paragraph("Numbers in this memo are rounded for display; the result folders hold the exact values. "
                             "A budget overshoot, unserved demand or a carbon price at the limits of the inputs signals "
                             "that the targets and the technology options of a scenario do not fit together."))
     blocks.append(Heading("Provenance"))
-    rows = []
-    for result, label in zip(results, labels, strict=True):
-        manifest = result.manifest
-        solver = manifest.get("solver", {}) or {}
-        versions = manifest.get("versions", {}) or {}
-        rows.append((label, str(manifest.get("source", "")), str(manifest.get("input_hash", ""))[:12],
-                     str(solver.get("status", "")), str(versions.get("pathcast", ""))))
-    blocks.append(Table(("scenario", "scenario file", "input hash", "solver status", "pathcast"), tuple(rows)))
+    if results:
+        rows = []
+        for result, label in zip(results, labels, strict=True):
+            manifest = result.manifest
+            solver = manifest.get("solver", {}) or {}
+            versions = manifest.get("versions", {}) or {}
+            rows.append((label, str(manifest.get("source", "")), str(manifest.get("input_hash", ""))[:12],
+                         str(solver.get("status", "")), str(versions.get("pathcast", ""))))
+        blocks.append(Table(("scenario", "scenario file", "input hash", "solver status", "pathcast"), tuple(rows)))
+    if ensembles:
+        rows = [(e.name, str(e.folder), e.file, e.base, e.base_hash[:12], f"{e.solved} of {e.members}",
+                 e.pathcast_version) for e in ensembles]
+        blocks.append(Table(("ensemble", "ensemble folder", "ensemble file", "base scenario file", "base input hash",
+                             "members solved", "pathcast"), tuple(rows),
+                            "Ensembles: each member's record is stored in the folder's members/ (one JSON file per "
+                            "member, named by the hash of its scenario)."))
     return Memo(title, tuple(blocks))
 
 
@@ -417,7 +614,7 @@ def render_markdown(memo: Memo, figure_folder: str = "figures") -> str:
             lines.append("")
             if block.caption:
                 lines += [f"*{block.caption}*", ""]
-        elif isinstance(block, FigureBlock):
+        elif isinstance(block, FigureBlock | ImageFile):
             lines += [f"![{block.caption.split('.')[0]}]({figure_folder}/{block.name}.png)", "", f"*{block.caption}*", ""]
     return "\n".join(lines).rstrip() + "\n"
 
@@ -432,6 +629,7 @@ th { background: #f0f0f0; text-align: left; }
 td.number { text-align: right; font-variant-numeric: tabular-nums; white-space: nowrap; }
 caption, figcaption { caption-side: bottom; text-align: left; font-size: 0.85rem; color: #444; padding-top: 0.3rem; }
 figure { margin: 1rem 0; } figure img { max-width: 100%; height: auto; }
+code { font-size: 0.9em; background: #f3f3f3; padding: 0 0.2em; }
 .notice { border-left: 4px solid #d1495b; background: #fbeaec; padding: 0.6rem 0.9rem; font-weight: 600; }
 .caution { border-left: 4px solid #555; background: #f3f3f3; padding: 0.6rem 0.9rem; }
 @media print { figure, table { page-break-inside: avoid; } }
@@ -446,6 +644,13 @@ def _is_number(text: str) -> bool:
         return False
 
 
+def _inline_html(text: str) -> str:
+    """Escaped HTML of a Markdown line with **bold** and `code` spans."""
+    text = html.escape(text)
+    text = re.sub(r"`([^`]+)`", r"<code>\1</code>", text)
+    return re.sub(r"\*\*(.+?)\*\*", r"<strong>\1</strong>", text)
+
+
 def render_html(memo: Memo, pngs: Mapping[str, bytes]) -> str:
     """Self-contained HTML of ``memo``: ``pngs`` maps each figure name to its PNG bytes, embedded as data URIs."""
     esc = html.escape
@@ -457,7 +662,8 @@ def render_html(memo: Memo, pngs: Mapping[str, bytes]) -> str:
             parts.append(f"<h{block.level}>{esc(block.text)}</h{block.level}>")
         elif isinstance(block, Paragraph):
             css = f' class="{block.kind}"' if block.kind != "text" else ""
-            parts.append(f"<p{css}>{esc(block.text)}</p>")
+            text = _inline_html(block.text) if block.markup else esc(block.text)
+            parts.append(f"<p{css}>{text}</p>")
         elif isinstance(block, Table):
             parts.append("<table>")
             if block.caption:
@@ -468,7 +674,7 @@ def render_html(memo: Memo, pngs: Mapping[str, bytes]) -> str:
                                 for i, c in enumerate(row))
                 parts.append(f"<tr>{cells}</tr>")
             parts.append("</tbody></table>")
-        elif isinstance(block, FigureBlock):
+        elif isinstance(block, FigureBlock | ImageFile):
             data = base64.b64encode(pngs[block.name]).decode("ascii")
             parts.append(f'<figure><img src="data:image/png;base64,{data}" alt="{esc(block.caption)}">'
                          f"<figcaption>{esc(block.caption)}</figcaption></figure>")
@@ -477,7 +683,8 @@ def render_html(memo: Memo, pngs: Mapping[str, bytes]) -> str:
 
 
 def write_memo(memo: Memo, folder: Path | str) -> Path:
-    """Write memo.md, memo.html and figures/<name>.png|svg to ``folder`` (replaced as a whole, atomically)."""
+    """Write memo.md, memo.html and figures/<name>.png|svg (an ensemble's figures: PNG only, copied) to ``folder``
+    (replaced as a whole, atomically)."""
     folder = Path(folder)
     with atomic_folder(folder) as tmp:
         pngs = {}
@@ -485,6 +692,11 @@ def write_memo(memo: Memo, folder: Path | str) -> Path:
             if isinstance(block, FigureBlock):
                 png, _ = save_figure(block.figure, tmp / "figures", block.name)
                 pngs[block.name] = png.read_bytes()
+            elif isinstance(block, ImageFile):
+                data = Path(block.source).read_bytes()
+                (tmp / "figures").mkdir(parents=True, exist_ok=True)
+                (tmp / "figures" / f"{block.name}.png").write_bytes(data)
+                pngs[block.name] = data
         (tmp / "memo.md").write_text(render_markdown(memo), encoding="utf-8")
         (tmp / "memo.html").write_text(render_html(memo, pngs), encoding="utf-8")
     return folder
