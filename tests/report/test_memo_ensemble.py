@@ -69,19 +69,13 @@ def table_rows(markdown: str) -> dict[str, list[str]]:
 
 @pytest.fixture(scope="module")
 def ensemble_dir(tmp_path_factory):
-    """tests/data/ensemble_lhs.yaml (6 members around tests/data/tiny.yaml), solved serially in this process.
+    """tests/data/ensemble_lhs.yaml (6 members around tests/data/tiny.yaml), solved serially in this process, after
+    other solves of this session (a serial ensemble must not depend on HiGHS's thread pool being fresh)."""
+    from pathcast.pipeline import run_scenario
 
-    Serial members ask HiGHS for 1 thread, which HiGHS refuses (run status error, model status not set) once an
-    earlier solve in the same process started its thread scheduler with more threads; the tiny runs of this session
-    have. The scheduler is reset before and after, so the ensemble and the later solves each start their own."""
-    import highspy
-
+    run_scenario(DATA / "tiny.yaml")  # start HiGHS's thread pool in this process first
     folder = tmp_path_factory.mktemp("ensemble") / "tiny_lhs"
-    highspy.Highs.resetGlobalScheduler(True)
-    try:
-        code = main(["ensemble", str(DATA / "ensemble_lhs.yaml"), "--serial", "--out", str(folder), "--quiet"])
-    finally:
-        highspy.Highs.resetGlobalScheduler(True)
+    code = main(["ensemble", str(DATA / "ensemble_lhs.yaml"), "--serial", "--out", str(folder), "--quiet"])
     assert code == 0
     return folder
 

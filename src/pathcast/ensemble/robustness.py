@@ -16,7 +16,9 @@ _DESIGN_NAMES = {"latin_hypercube": "Latin hypercube sample", "grid": "full grid
 def _fmt(value: float, digits: int = 3) -> str:
     if value is None or not math.isfinite(value):
         return "n/a"
-    return f"{value:,.{digits}g}" if abs(value) < 1000 else f"{value:,.0f}"
+    text = f"{value:,.{digits}g}"
+    # below 1000 three significant digits; a value that rounds up to 1000 or more, or is larger, as a whole number
+    return f"{value:,.0f}" if "e" in text or abs(value) >= 1000 else text
 
 
 def ensemble_robustness_section(ensemble_dir: str | Path, *, heading_level: int = 2,

@@ -136,9 +136,24 @@ def _options(options: SolverOptions, n_rows: int, warm: bool) -> dict:
     opts = highs_options_for("simplex" if warm else options.method, n_rows)
     if options.time_limit_s:
         opts["time_limit"] = float(options.time_limit_s)
-    opts["threads"] = int(options.threads) if options.threads else MEMBER_THREADS
+    if options.threads:
+        opts["threads"] = int(options.threads)
+    elif _in_dask_worker():
+        # one HiGHS thread per worker process; not in a serial run, where HiGHS's thread pool may already run with
+        # more threads from an earlier solve in the same process and would refuse a smaller count
+        opts["threads"] = MEMBER_THREADS
     opts.update(options.options)
     return opts
+
+
+def _in_dask_worker() -> bool:
+    try:
+        from distributed import get_worker
+
+        get_worker()
+    except (ImportError, ValueError):
+        return False
+    return True
 
 
 def _solve(context: SharedContext, task: MemberTask, *, warm_start: bool, keep_basis: bool = False) -> dict:
