@@ -35,6 +35,14 @@ def test_run_writes_every_table_and_the_summary(tmp_path, capsys):
     pd.testing.assert_frame_equal(again.capacity, pd.read_csv(out / "capacity.csv"))
 
 
+def test_run_json_for_scripts(tmp_path, capsys):
+    out = tmp_path / "tiny"
+    assert main(["run", str(DATA / "tiny.yaml"), "--out", str(out), "--json", "--quiet", "--no-excel"]) == 0
+    printed = json.loads(capsys.readouterr().out)
+    assert printed["summary"] == json.loads((out / "summary.json").read_text())
+    assert printed["result_folder"] == str(out)
+
+
 def test_check_reports_a_valid_scenario(capsys):
     assert main(["check", str(DEMO / "budget_no_new_gas.yaml"), "--json"]) == 0
     facts = json.loads(capsys.readouterr().out)

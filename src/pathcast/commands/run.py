@@ -26,6 +26,7 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
     parser.add_argument("--no-parquet", action="store_true", help="skip Parquet files")
     parser.add_argument("--no-excel", action="store_true", help="skip the Excel workbook")
     parser.add_argument("--quiet", action="store_true", help="print only the summary")
+    parser.add_argument("--json", action="store_true", help="print summary.json (plus the result folder) instead of the text summary")
     parser.add_argument("--allow-overshoot", type=float, default=None, metavar="PRICE",
                         help="relax the carbon budget: emissions above it cost PRICE [currency/tCO2], paid in the "
                         "budget's last year; the overshoot is reported (default: the budget is a hard limit, and an "
@@ -77,6 +78,12 @@ def execute(args: argparse.Namespace) -> int:
     if diagnosis is not None and not diagnosis.achievable:
         print(f"pathcast: the pathway found sheds demand; its tables are in {out}/ for inspection.", file=sys.stderr)
         raise InfeasibleError(explain(diagnosis), diagnosis=diagnosis.as_dict())
+    if args.json:
+        import json
+
+        print(json.dumps({"result_folder": str(out), "summary": dict(run.result.summary),
+                          "stage_times_s": run.result.manifest.get("stage_times_s")}, indent=2, default=str))
+        return 0
     print(render_summary(run.result))
     if overshoot_price is not None:
         s = run.result.summary
