@@ -138,6 +138,99 @@ def prepare_mps(args: argparse.Namespace) -> dict:
     return {"kind": "prepare", "rows": int(lp.num_row_), "ranges": _lp_ranges(lp)}
 
 
+def worker_build(args: argparse.Namespace) -> dict:
+    """Every pathcast stage except the solve, timed like the pipeline: load + validation, array LP, Pyomo, hand-off
+    (compile, fill HighsLp, set options, passModel, release the Pyomo model, as in ``solve_highs``) and results
+    extraction from an all-zero solution (the extraction's work does not depend on the values). Then the MPS file."""
+    import numpy as np
+
+    from pathcast.model.build import build_linear_program
+    from pathcast.model.pyomo_model import to_pyomo
+    from pathcast.pipeline import solver_options_from
+    from pathcast.results.extract import extract_tables, headline_figures
+    from pathcast.scenario.inputs import prepare_inputs
+    from pathcast.scenario.loader import load_scenario
+    from pathcast.solve import Solution, handoff, highs_options_for, new_highs
+
+    t = {}
+    clock = time.perf_counter()
+
+    def lap(name: str) -> None:
+        nonlocal clock
+        now = time.perf_counter()
+        t[name] = now - clock
+        clock = now
+
+    inputs = prepare_inputs(load_scenario(args.scenario).scenario)
+    lap("load_s")
+    model = build_linear_program(inputs)
+    matrix, _, _ = model.lp.matrix()
+    lap("build_lp_s")
+    handles = to_pyomo(model.lp)
+    lap("build_pyomo_s")
+    lp, col_map, row_map = handoff(handles, *matrix.shape)
+    handles.release()
+    h = new_highs()
+    options = highs_options_for(solver_options_from(inputs).method, lp.num_row_)
+    for key, value in options.items():
+        h.setOptionValue(key, value)
+    h.passModel(lp)
+    lap("handoff_s")
+    solution = Solution(status="optimal", objective=0.0, x=np.zeros(matrix.shape[1]), row_dual=np.zeros(matrix.shape[0]),
+                        method="auto", options=options, handoff_s=0.0, solve_s=0.0, rows=lp.num_row_,
+                        columns=lp.num_col_, nonzeros=len(lp.a_matrix_.value_), iterations={}, highs=h,
+                        row_map=row_map, col_map=col_map)
+    tables = extract_tables(model, solution)
+    headline_figures(model, solution, tables)
+    lap("extract_s")
+    peak = _peak_rss_mb()
+    if args.write_mps:
+        h.writeModel(str(args.write_mps))
+    return {"kind": "build", "times": t, "peak_rss_mb": peak, "rows": int(lp.num_row_), "columns": int(lp.num_col_),
+            "nonzeros": len(lp.a_matrix_.value_)}
+
+
+def worker_read(args: argparse.Namespace) -> dict:
+    """A fresh highspy reads the MPS file (no solve): the bare solver's read time and memory before solving."""
+    import highspy
+
+    h = highspy.Highs()
+    h.setOptionValue("output_flag", False)
+    started = time.perf_counter()
+    h.readModel(str(args.mps))
+    return {"kind": "read", "read_s": time.perf_counter() - started, "peak_rss_mb": _peak_rss_mb()}
+
+
+def measure_build(sizes: list[str], args: argparse.Namespace) -> list[dict]:
+    """Stage times without the solve, median of --repeats, alternating with the bare read of the same LP."""
+    from scenario_generator import write_scenario
+
+    rows = []
+    out_dir = Path(args.out)
+    for size in sizes:
+        scenario = write_scenario(out_dir / "scenarios", size)
+        mps = out_dir / "mps" / (scenario.stem + ".build.mps")
+        mps.parent.mkdir(parents=True, exist_ok=True)
+        builds, reads = [], []
+        for r in range(args.repeats):
+            extra = ["--write-mps", str(mps)] if r == 0 else []
+            builds.append(_run_worker(["--worker", "build", "--scenario", str(scenario), *extra]))
+            reads.append(_run_worker(["--worker", "read", "--mps", str(mps)]))
+        times = {k: _median([b["times"][k] for b in builds]) for k in builds[0]["times"]}
+        overhead = times["build_lp_s"] + times["build_pyomo_s"] + times["handoff_s"] + times["extract_s"]
+        row = {"size": size, "rows": builds[0]["rows"], "columns": builds[0]["columns"],
+               "nonzeros": builds[0]["nonzeros"], "runs": len(builds), "times": times, "overhead_s": overhead,
+               "overhead_us_per_row": overhead * 1e6 / builds[0]["rows"],
+               "peak_rss_mb": _median([b["peak_rss_mb"] for b in builds]),
+               "bare_read_s": _median([x["read_s"] for x in reads]),
+               "bare_read_peak_rss_mb": _median([x["peak_rss_mb"] for x in reads])}
+        rows.append(row)
+        print(f"[{time.strftime('%H:%M:%S')}] build {size}: {row['rows']:,} rows, overhead {overhead:.2f} s = "
+              f"{row['overhead_us_per_row']:.1f} us/row, peak {row['peak_rss_mb']:.0f} MB (bare read "
+              f"{row['bare_read_peak_rss_mb']:.0f} MB)", file=sys.stderr, flush=True)
+    return rows
+
+
 def worker_bare(args: argparse.Namespace) -> dict:
     """A fresh highspy reads the MPS file and solves it; nothing from pathcast is imported."""
     import highspy
@@ -406,7 +499,9 @@ def main(argv: list[str] | None = None) -> int:
     parser.add_argument("--report", nargs="+", metavar="JSON", default=None,
                         help="write benchmarks/RESULTS.md from these result files (rows merged, later files win)")
     parser.add_argument("--demo", default=None, help="with --report: JSON of a demo run (see RESULTS.md)")
-    parser.add_argument("--worker", choices=("pathcast", "bare"), help=argparse.SUPPRESS)
+    parser.add_argument("--build-only", action="store_true", help="stage times and memory without the solve "
+                        "(build-time growth with size; every size in minutes)")
+    parser.add_argument("--worker", choices=("pathcast", "bare", "build", "read"), help=argparse.SUPPRESS)
     parser.add_argument("--scenario", help=argparse.SUPPRESS)
     parser.add_argument("--write-mps", help=argparse.SUPPRESS)
     parser.add_argument("--prepare-only", action="store_true", help=argparse.SUPPRESS)
@@ -422,6 +517,12 @@ def main(argv: list[str] | None = None) -> int:
     if args.worker == "bare":
         print(json.dumps(worker_bare(args)))
         return 0
+    if args.worker == "build":
+        print(json.dumps(worker_build(args)))
+        return 0
+    if args.worker == "read":
+        print(json.dumps(worker_read(args)))
+        return 0
 
     from pathcast.pipeline import package_versions
 
@@ -429,6 +530,14 @@ def main(argv: list[str] | None = None) -> int:
         from report_results import write_report
 
         write_report([Path(p) for p in args.report], HERE / "RESULTS.md", Path(args.demo) if args.demo else None)
+        return 0
+    if args.build_only:
+        sizes = [s for s in args.sizes.split(",") if s]
+        out_json = Path(args.json) if args.json else Path(args.out) / f"build-{time.strftime('%Y%m%d-%H%M%S')}.json"
+        out_json.parent.mkdir(parents=True, exist_ok=True)
+        rows = measure_build(sizes, args)
+        out_json.write_text(json.dumps({"cores": os.cpu_count(), "versions": package_versions(), "build_rows": rows},
+                                       indent=1))
         return 0
     rows = []
     out_json = Path(args.json) if args.json else Path(args.out) / f"results-{time.strftime('%Y%m%d-%H%M%S')}.json"
