@@ -34,14 +34,18 @@ def _fit(rows: list[dict]) -> dict | None:
 
 def write_report(files: list[Path], target: Path, demo: Path | None = None) -> None:
     by_size: dict[str, dict] = {}
+    build_by_size: dict[str, dict] = {}
     meta = {}
     for f in files:
         data = json.loads(f.read_text())
         meta = {"cores": data["cores"], "versions": data["versions"]}
-        for row in data["rows"]:
+        for row in data.get("rows", []):
             by_size[row["size"]] = row
+        for row in data.get("build_rows", []):
+            build_by_size[row["size"]] = row
     rows = sorted(by_size.values(), key=lambda r: _size_key(r["size"]))
-    fit = _fit(rows)
+    build_rows = sorted(build_by_size.values(), key=lambda r: _size_key(r["size"]))
+    fit = _fit(build_rows) if len(build_rows) >= 2 else (_fit(rows) if rows else None)
     out = ["# Benchmark results", "",
            "Produced by `benchmarks/run_benchmarks.py` (synthetic scenarios from `benchmarks/scenario_generator.py`) and "
            "`python benchmarks/run_benchmarks.py --report <json files>`. Every number is from a run on this machine; "
@@ -68,6 +72,23 @@ def write_report(files: list[Path], target: Path, demo: Path | None = None) -> N
             f"| {r['memory_ratio']:.2f} | {r.get('defaults_solve_s', math.nan):.1f} "
             f"| {r.get('speedup_vs_defaults', math.nan):.2f} | {r['objective_rel_diff']:.1e} |")
     out.append("")
+    if build_rows:
+        out += ["## Modelling overhead and memory by size, without the solve", "",
+                "`--build-only`: every pathcast stage but the solve (extraction from an all-zero solution), median of "
+                "*n* runs, alternating with a fresh highspy reading the same LP from MPS (no solve). Peak memory is "
+                "VmHWM of each process.", "",
+                "| size | rows | columns | nonzeros | n | load | build LP | build Pyomo | hand-off | extract "
+                "| overhead [s] | overhead [us/row] | same, CPU time [us/row] | peak MB pathcast | peak MB bare read "
+                "| bare read [s] |",
+                "|" + "---|" * 16]
+        for r in build_rows:
+            t = r["times"]
+            out.append(f"| {r['size']} | {r['rows']:,} | {r['columns']:,} | {r['nonzeros']:,} | {r['runs']} "
+                       f"| {t['load_s']:.2f} | {t['build_lp_s']:.2f} | {t['build_pyomo_s']:.2f} | {t['handoff_s']:.2f} "
+                       f"| {t['extract_s']:.2f} | {r['overhead_s']:.2f} | {r['overhead_us_per_row']:.1f} "
+                       f"| {r.get('cpu_overhead_us_per_row', math.nan):.1f} "
+                       f"| {r['peak_rss_mb']:.0f} | {r['bare_read_peak_rss_mb']:.0f} | {r['bare_read_s']:.2f} |")
+        out.append("")
     if fit:
         out.append(f"Build time (array LP + Pyomo) grows as (years x hours)^{fit['build']:.2f}, the whole modelling "
                    f"overhead as (years x hours)^{fit['overhead']:.2f} (least-squares fit of the logs over "

@@ -152,14 +152,15 @@ def worker_build(args: argparse.Namespace) -> dict:
     from pathcast.scenario.loader import load_scenario
     from pathcast.solve import Solution, handoff, highs_options_for, new_highs
 
-    t = {}
-    clock = time.perf_counter()
+    t, cpu = {}, {}
+    clock, cpu_clock = time.perf_counter(), time.process_time()
 
     def lap(name: str) -> None:
-        nonlocal clock
-        now = time.perf_counter()
-        t[name] = now - clock
-        clock = now
+        # wall time, and this process's CPU time (less sensitive to other processes on a shared machine)
+        nonlocal clock, cpu_clock
+        now, cpu_now = time.perf_counter(), time.process_time()
+        t[name], cpu[name] = now - clock, cpu_now - cpu_clock
+        clock, cpu_clock = now, cpu_now
 
     inputs = prepare_inputs(load_scenario(args.scenario).scenario)
     lap("load_s")
@@ -186,7 +187,7 @@ def worker_build(args: argparse.Namespace) -> dict:
     peak = _peak_rss_mb()
     if args.write_mps:
         h.writeModel(str(args.write_mps))
-    return {"kind": "build", "times": t, "peak_rss_mb": peak, "rows": int(lp.num_row_), "columns": int(lp.num_col_),
+    return {"kind": "build", "times": t, "cpu_times": cpu, "peak_rss_mb": peak, "rows": int(lp.num_row_), "columns": int(lp.num_col_),
             "nonzeros": len(lp.a_matrix_.value_)}
 
 
@@ -218,7 +219,10 @@ def measure_build(sizes: list[str], args: argparse.Namespace) -> list[dict]:
             reads.append(_run_worker(["--worker", "read", "--mps", str(mps)]))
         times = {k: _median([b["times"][k] for b in builds]) for k in builds[0]["times"]}
         overhead = times["build_lp_s"] + times["build_pyomo_s"] + times["handoff_s"] + times["extract_s"]
-        row = {"size": size, "rows": builds[0]["rows"], "columns": builds[0]["columns"],
+        cpu = {k: _median([b["cpu_times"][k] for b in builds]) for k in builds[0]["cpu_times"]}
+        cpu_overhead = cpu["build_lp_s"] + cpu["build_pyomo_s"] + cpu["handoff_s"] + cpu["extract_s"]
+        row = {"size": size, "rows": builds[0]["rows"], "columns": builds[0]["columns"], "cpu_times": cpu,
+               "cpu_overhead_us_per_row": cpu_overhead * 1e6 / builds[0]["rows"],
                "nonzeros": builds[0]["nonzeros"], "runs": len(builds), "times": times, "overhead_s": overhead,
                "overhead_us_per_row": overhead * 1e6 / builds[0]["rows"],
                "peak_rss_mb": _median([b["peak_rss_mb"] for b in builds]),
