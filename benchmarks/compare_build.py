@@ -37,6 +37,7 @@ def _old_module(commit: str, path: str, name: str, folder: Path):
     file.write_text(text)
     spec = importlib.util.spec_from_file_location(name, file)
     module = importlib.util.module_from_spec(spec)
+    sys.modules[name] = module  # dataclasses look their module up
     spec.loader.exec_module(module)
     return module
 
