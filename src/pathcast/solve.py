@@ -87,6 +87,11 @@ def handoff(handles: PyomoHandles, n_rows: int, n_cols: int):
     with PauseGC():  # the compiler makes a few objects per row; no cyclic GC passes while it runs
         compiled = LinearStandardFormCompiler().write(handles.model, mixed_form=True,
                                                       column_order=handles.var_components or handles.variables)
+        return _fill_highs_lp(handles, compiled)
+
+
+def _fill_highs_lp(handles: PyomoHandles, compiled):
+    """The HighsLp of a compiled standard form, with the row and column maps (see handoff)."""
     columns = compiled.columns
     if len(columns) == len(handles.variables) and all(a is b for a, b in zip(columns, handles.variables, strict=True)):
         col_map = np.arange(len(columns), dtype=np.int64)

@@ -16,6 +16,7 @@ How the build is kept lean (measured in benchmarks/RESULTS.md; Pyomo's guidance 
 
 from __future__ import annotations
 
+import gc
 import math
 
 import numpy as np
@@ -57,6 +58,7 @@ class PyomoHandles:
             # lets reference counting free them, and their rows and terms, at once
             for component in list(model.component_objects(descend_into=False)):
                 model.del_component(component)
+        gc.unfreeze()
 
 
 def _add_variables(model: pyo.ConcreteModel, lp: LinearProgram) -> tuple[list, list]:
@@ -106,6 +108,7 @@ def to_pyomo(lp: LinearProgram) -> PyomoHandles:
     matrix, row_lower, row_upper = lp.matrix()
     cost = lp.cost_vector()
     model = pyo.ConcreteModel(name="pathcast")
+    gc.unfreeze()  # objects an earlier build froze (see below) become collectable again
     with PauseGC():
         flat_vars, var_components = _add_variables(model, lp)
         terms = _terms(matrix, flat_vars)
@@ -130,4 +133,9 @@ def to_pyomo(lp: LinearProgram) -> PyomoHandles:
         objective = LinearExpression(constant=0.0, linear_coefs=cost[nz].tolist(),
                                      linear_vars=[flat_vars[j] for j in nz.tolist()])
         model.total_discounted_cost = pyo.Objective(expr=objective, sense=pyo.minimize)
+        # The model's millions of objects live until the solve: freezing them keeps every later garbage collection
+        # from scanning them again (measured: 0.75 s in the build and 2.6 s in the hand-off at 303 000 rows, a
+        # third of both). They stay freed by reference counting; cycles among them wait for the next build or
+        # release(), which unfreeze.
+        gc.freeze()
     return PyomoHandles(model, flat_vars, flat_cons, var_components, con_components)
