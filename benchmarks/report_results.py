@@ -40,6 +40,9 @@ def write_report(files: list[Path], target: Path, demo: Path | None = None) -> N
         data = json.loads(f.read_text())
         meta = {"cores": data["cores"], "versions": data["versions"]}
         for row in data.get("rows", []):
+            earlier = by_size.get(row["size"])
+            if earlier is not None and earlier.get("methods") and not row.get("methods"):
+                row = dict(row, methods=earlier["methods"])  # keep a method comparison made in another run
             by_size[row["size"]] = row
         for row in data.get("build_rows", []):
             build_by_size[row["size"]] = row
