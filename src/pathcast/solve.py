@@ -136,9 +136,11 @@ def solve_highs(handles: PyomoHandles, n_rows: int, n_cols: int, options: Solver
     released once HiGHS holds the LP (``handles.release()``), which lowers the peak memory of a run; pass False to
     keep using the Pyomo model afterwards."""
     started = time.perf_counter()
-    lp, col_map, row_map = handoff(handles, n_rows, n_cols)
-    if release_model:
-        handles.release()
+    try:
+        lp, col_map, row_map = handoff(handles, n_rows, n_cols)
+    finally:
+        if release_model:
+            handles.release()  # also undoes the build's gc.freeze(), on success or failure
     h = new_highs(log=options.log)
     highs_opts = highs_options_for(options.method, lp.num_row_)
     if options.time_limit_s:
