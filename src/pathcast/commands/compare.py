@@ -10,8 +10,6 @@ from __future__ import annotations
 import argparse
 import json
 import math
-import sys
-import time
 from collections.abc import Callable, Sequence
 from dataclasses import dataclass
 from pathlib import Path
@@ -27,6 +25,7 @@ from ..results.compare import compare, metric_label
 from ..results.run_result import RunResult
 from ..results.writers import atomic_folder, read_result
 from ..scenario.loader import LoadedScenario, load_scenario
+from . import progress_printer
 
 __all__ = ["add_arguments", "execute", "Source", "gather_results", "check_output_folder", "render_comparison"]
 
@@ -106,11 +105,7 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
 
 
 def execute(args: argparse.Namespace) -> int:
-    started = time.perf_counter()
-
-    def progress(message: str) -> None:
-        if not args.quiet:
-            print(f"[{time.perf_counter() - started:6.1f} s] {message}", file=sys.stderr, flush=True)
+    progress = progress_printer(args.quiet)
 
     check_output_folder(args.out, "comparison.csv", "compare")
     results = [source.result for source in gather_results(args.inputs, progress)]

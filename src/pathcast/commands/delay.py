@@ -9,14 +9,13 @@ from __future__ import annotations
 import argparse
 import json
 import math
-import sys
-import time
 from pathlib import Path
 
 from ..analysis.achievability import explain
 from ..analysis.delay import DelayStudy, delayed_action
 from ..errors import ScenarioError
 from ..results.writers import atomic_folder
+from . import progress_printer
 
 __all__ = ["add_arguments", "execute", "parse_years", "render_text", "render_json", "write_study"]
 
@@ -111,11 +110,7 @@ def execute(args: argparse.Namespace) -> int:
     from ..scenario.inputs import prepare_inputs
     from ..scenario.loader import load_scenario
 
-    started = time.perf_counter()
-
-    def progress(message: str) -> None:
-        if not args.quiet and not args.json:
-            print(f"[{time.perf_counter() - started:6.1f} s] {message}", file=sys.stderr, flush=True)
+    progress = progress_printer(args.quiet or args.json)
 
     progress(f"reading {args.file}")
     inputs = prepare_inputs(load_scenario(args.file).scenario)

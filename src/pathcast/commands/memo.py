@@ -16,8 +16,6 @@ from __future__ import annotations
 
 import argparse
 import math
-import sys
-import time
 from pathlib import Path
 
 import pandas as pd
@@ -27,6 +25,7 @@ from ..report.memo import MemoEnsemble, MemoInput, build_memo, write_memo
 from ..results.assumptions import assumptions_table, metadata_assumptions
 from ..results.compare import scenario_labels
 from ..scenario.loader import load_scenario
+from . import progress_printer
 from .compare import Source, check_output_folder, gather_results
 
 __all__ = ["add_arguments", "execute", "assumptions_of", "default_folder", "split_inputs", "read_ensemble"]
@@ -144,11 +143,7 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
 
 
 def execute(args: argparse.Namespace) -> int:
-    started = time.perf_counter()
-
-    def progress(message: str) -> None:
-        if not args.quiet:
-            print(f"[{time.perf_counter() - started:6.1f} s] {message}", file=sys.stderr, flush=True)
+    progress = progress_printer(args.quiet)
 
     if args.out is not None:
         check_output_folder(args.out, "memo.md", "memo")

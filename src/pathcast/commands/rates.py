@@ -12,8 +12,6 @@ from __future__ import annotations
 import argparse
 import json
 import math
-import sys
-import time
 from dataclasses import dataclass
 from pathlib import Path
 
@@ -28,6 +26,7 @@ from ..results.reduction_rates import (
     required_rates_table,
 )
 from ..results.run_result import RunResult
+from . import progress_printer
 
 __all__ = ["add_arguments", "execute", "RatesReport", "compute_rates", "render_text", "render_json", "load_result"]
 
@@ -156,11 +155,7 @@ def render_text(report: RatesReport) -> str:
 
 
 def execute(args: argparse.Namespace) -> int:
-    started = time.perf_counter()
-
-    def progress(message: str) -> None:
-        if not args.quiet and not args.json:
-            print(f"[{time.perf_counter() - started:6.1f} s] {message}", file=sys.stderr, flush=True)
+    progress = progress_printer(args.quiet or args.json)
 
     result = load_result(args.source, progress)
     report = compute_rates(result, from_year=args.from_year, to_year=args.to_year, step=args.step,

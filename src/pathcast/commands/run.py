@@ -4,7 +4,6 @@ from __future__ import annotations
 
 import argparse
 import sys
-import time
 from dataclasses import replace
 from pathlib import Path
 
@@ -14,6 +13,7 @@ from ..report.console import render_profile, render_summary
 from ..results.run_result import RunResult
 from ..results.writers import write_result
 from ..solve import METHODS
+from . import progress_printer
 
 
 def add_arguments(parser: argparse.ArgumentParser) -> None:
@@ -34,11 +34,7 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
 
 
 def execute(args: argparse.Namespace) -> int:
-    started = time.perf_counter()
-
-    def progress(message: str) -> None:
-        if not args.quiet:
-            print(f"[{time.perf_counter() - started:6.1f} s] {message}", file=sys.stderr, flush=True)
+    progress = progress_printer(args.quiet)
 
     from ..analysis.achievability import diagnose_budget, explain
 

@@ -32,7 +32,6 @@ from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Annotated, Any, Literal
 
-import yaml
 from pydantic import (
     BaseModel,
     ConfigDict,
@@ -50,6 +49,7 @@ from ..scenario.loader import (
     load_scenario_mapping,
     located_error,
     read_scenario_mapping,
+    read_yaml_document,
     value_at,
 )
 
@@ -274,14 +274,7 @@ def scalable(value: Any) -> bool:
 def load_ensemble(path: str | Path) -> EnsembleSpec:
     """Read and validate an ensemble file and its base scenario; raise ScenarioError with a located sentence."""
     path = Path(path)
-    if not path.is_file():
-        raise ScenarioError(f"{path}: no such ensemble file.", file=str(path))
-    try:
-        data = yaml.safe_load(path.read_text(encoding="utf-8"))
-    except yaml.YAMLError as error:
-        mark = getattr(error, "problem_mark", None)
-        where = f" at line {mark.line + 1}, column {mark.column + 1}" if mark else ""
-        raise ScenarioError(f"{path}: not valid YAML{where}: {getattr(error, 'problem', error)}.", file=str(path)) from None
+    data = read_yaml_document(path, "ensemble")
     if not isinstance(data, dict):
         raise located_error(path, "(top level)", type(data).__name__,
                             "a mapping with name, base, design and inputs")

@@ -19,7 +19,7 @@ from pydantic import BaseModel, ValidationError
 from ..errors import ScenarioError, did_you_mean
 from .schema import Scenario
 
-__all__ = ["load_scenario", "LoadedScenario", "located_error", "read_yaml_with_extends", "value_at", "read_scenario_mapping",
+__all__ = ["load_scenario", "LoadedScenario", "located_error", "read_yaml_with_extends", "value_at", "read_yaml_document", "read_scenario_mapping",
            "load_scenario_mapping"]
 
 Provenance = dict[tuple, Path]
@@ -64,17 +64,23 @@ def file_for(provenance: Provenance, path: tuple, default: Path) -> Path:
     return default
 
 
-def _read_yaml(path: Path, referrer: tuple[Path, str] | None) -> dict[str, Any]:
+def read_yaml_document(path: Path, kind: str = "scenario") -> Any:
+    """The parsed YAML of ``path``; a missing file or a syntax error is a one-sentence ScenarioError."""
+    path = Path(path)
     if not path.is_file():
-        if referrer:
-            raise located_error(referrer[0], referrer[1], str(path), "an existing scenario file")
-        raise ScenarioError(f"{path}: no such scenario file.", file=str(path))
+        raise ScenarioError(f"{path}: no such {kind} file.", file=str(path))
     try:
-        data = yaml.safe_load(path.read_text(encoding="utf-8"))
+        return yaml.safe_load(path.read_text(encoding="utf-8"))
     except yaml.YAMLError as error:
         mark = getattr(error, "problem_mark", None)
         where = f" at line {mark.line + 1}, column {mark.column + 1}" if mark else ""
         raise ScenarioError(f"{path}: not valid YAML{where}: {getattr(error, 'problem', error)}.", file=str(path)) from None
+
+
+def _read_yaml(path: Path, referrer: tuple[Path, str] | None) -> dict[str, Any]:
+    if referrer and not path.is_file():
+        raise located_error(referrer[0], referrer[1], str(path), "an existing scenario file")
+    data = read_yaml_document(path, "scenario")
     if data is None:
         data = {}
     if not isinstance(data, dict):
