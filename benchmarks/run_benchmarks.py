@@ -320,7 +320,8 @@ def _parse_ranges(log_file: Path) -> dict:
     return out
 
 
-def measure_size(size: str, args: argparse.Namespace) -> dict:
+def _case_paths(size: str, args: argparse.Namespace) -> tuple[Path, Path, Path]:
+    """Write the generated scenario of ``size``; return it with the MPS file path and the log folder."""
     sys.path.insert(0, str(HERE))
     from scenario_generator import write_scenario
 
@@ -330,6 +331,11 @@ def measure_size(size: str, args: argparse.Namespace) -> dict:
     mps.parent.mkdir(parents=True, exist_ok=True)
     logs = out_dir / "logs"
     logs.mkdir(parents=True, exist_ok=True)
+    return scenario, mps, logs
+
+
+def measure_size(size: str, args: argparse.Namespace) -> dict:
+    scenario, mps, logs = _case_paths(size, args)
     common = ["--time-limit", str(args.time_limit)] if args.time_limit else []
     method = args.method
 
@@ -414,18 +420,12 @@ def _dual_diffs(result: dict, reference: dict) -> dict:
 
 
 def measure_concurrent(size: str, args: argparse.Namespace) -> dict:
-    """One run of pathcast end to end, the bare solver with pathcast's options and HiGHS defaults, started at the
+    """One run of pathcast end to end, the bare solver with pathcast's options and (unless --no-defaults) HiGHS defaults, started at the
     same moment (each single-threaded HiGHS; on 2 cores all three share the machine alike). For the national size,
     where one solve takes many minutes."""
     from pathcast.solve import highs_options_for
-    from scenario_generator import write_scenario
 
-    out_dir = Path(args.out)
-    scenario = write_scenario(out_dir / "scenarios", size)
-    mps = out_dir / "mps" / (scenario.stem + ".mps")
-    mps.parent.mkdir(parents=True, exist_ok=True)
-    logs = out_dir / "logs"
-    logs.mkdir(parents=True, exist_ok=True)
+    scenario, mps, logs = _case_paths(size, args)
     prep = _run_worker(["--worker", "pathcast", "--prepare-only", "--scenario", str(scenario), "--write-mps", str(mps)])
     common = ["--time-limit", str(args.time_limit)] if args.time_limit else []
     chosen = highs_options_for(args.method, prep["rows"])
@@ -436,6 +436,8 @@ def measure_concurrent(size: str, args: argparse.Namespace) -> dict:
         "defaults": ["--worker", "bare", "--mps", str(mps), "--options", "{}",
                      "--log-file", str(logs / f"{scenario.stem}.defaults.0.log"), *common],
     }
+    if args.no_defaults:
+        del cmds["defaults"]
     procs = {k: subprocess.Popen([sys.executable, str(Path(__file__).resolve()), *v], stdout=subprocess.PIPE,
                                  stderr=subprocess.PIPE, text=True) for k, v in cmds.items()}
     results = {}
@@ -446,7 +448,7 @@ def measure_concurrent(size: str, args: argparse.Namespace) -> dict:
         results[k] = json.loads(stdout.strip().splitlines()[-1])
         (logs / f"{scenario.stem}.{k}.json").write_text(json.dumps(results[k]))
         print(f"[{time.strftime('%H:%M:%S')}] {size}: {k} done", file=sys.stderr, flush=True)
-    first, bare, dflt = results["pathcast"], results["bare"], results["defaults"]
+    first, bare, dflt = results["pathcast"], results["bare"], results.get("defaults")
     times = first["times"]
     overhead = times["build_lp_s"] + times["build_pyomo_s"] + times["handoff_s"] + times["extract_s"]
     row = {
@@ -460,11 +462,14 @@ def measure_concurrent(size: str, args: argparse.Namespace) -> dict:
         "objective_rel_diff": abs(first["objective"] - bare["objective"]) / max(abs(bare["objective"]), 1e-12),
         "ranges_lp": prep["ranges"], "ranges_highs_log": _parse_ranges(logs / f"{scenario.stem}.chosen.0.log"),
         "chosen_duals": _dual_diffs(bare, first), "methods": {},
-        "defaults_solve_s": dflt["solve_s"], "defaults_status": dflt["status"],
-        "speedup_vs_defaults": dflt["solve_s"] / bare["solve_s"],
-        "defaults_objective_rel_diff": abs(dflt["objective"] - bare["objective"]) / max(abs(bare["objective"]), 1e-12),
-        "defaults_duals": _dual_diffs(dflt, first),
     }
+    if dflt is not None:
+        row.update({
+            "defaults_solve_s": dflt["solve_s"], "defaults_status": dflt["status"],
+            "speedup_vs_defaults": dflt["solve_s"] / bare["solve_s"],
+            "defaults_objective_rel_diff": abs(dflt["objective"] - bare["objective"]) / max(abs(bare["objective"]), 1e-12),
+            "defaults_duals": _dual_diffs(dflt, first),
+        })
     row["memory_ratio"] = row["peak_rss_mb"] / row["bare_peak_rss_mb"]
     return row
 

@@ -18,8 +18,6 @@ tornado                     one_at_a_time only: change of total cost and cumulat
 from __future__ import annotations
 
 import math
-import os
-import tempfile
 from pathlib import Path
 
 import numpy as np
@@ -30,6 +28,7 @@ from matplotlib.patches import Patch
 from matplotlib.ticker import MaxNLocator
 
 from ..report.colours import scenario_style, technology_style
+from .store import write_atomic
 from .summary import EnsembleSummary
 
 __all__ = ["emissions_fan_figure", "capacity_fan_figure", "distributions_figure", "budget_probability_figure",
@@ -284,16 +283,5 @@ def ensemble_figures(summary: EnsembleSummary) -> dict[str, Figure]:
 
 def save_png(fig: Figure, path: Path | str, dpi: int = DPI) -> Path:
     """Write a figure as PNG through a temporary file and ``os.replace``."""
-    path = Path(path)
-    path.parent.mkdir(parents=True, exist_ok=True)
     FigureCanvasAgg(fig)
-    handle, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".png", dir=path.parent)
-    os.close(handle)
-    try:
-        fig.savefig(tmp, dpi=dpi, format="png")
-        os.chmod(tmp, 0o644)  # mkstemp makes it private; results are for reading
-        os.replace(tmp, path)
-    except BaseException:
-        Path(tmp).unlink(missing_ok=True)
-        raise
-    return path
+    return write_atomic(Path(path), lambda tmp: fig.savefig(tmp, dpi=dpi, format="png"), suffix=".png")

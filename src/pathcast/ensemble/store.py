@@ -23,22 +23,33 @@ def _default(value: Any) -> Any:
     return str(value)
 
 
-def write_json_atomic(path: Path, data: Any) -> Path:
-    """Write JSON to ``path`` through a temporary file in the same folder and ``os.replace`` (atomic on POSIX)."""
+def write_atomic(path: Path, write, suffix: str = ".tmp") -> Path:
+    """Call ``write(temporary_path)`` for a temporary file beside ``path``, then ``os.replace`` it into place (atomic
+    on POSIX); the temporary file is removed on failure."""
     path = Path(path)
     path.parent.mkdir(parents=True, exist_ok=True)
-    handle, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp", dir=path.parent)
+    handle, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=suffix, dir=path.parent)
+    os.close(handle)
     try:
-        with os.fdopen(handle, "w", encoding="utf-8") as out:
-            json.dump(data, out, indent=1, default=_default)
-            out.flush()
-            os.fsync(out.fileno())
+        write(tmp)
         os.chmod(tmp, 0o644)  # mkstemp makes it private; results are for reading
         os.replace(tmp, path)
     except BaseException:
         Path(tmp).unlink(missing_ok=True)
         raise
     return path
+
+
+def write_json_atomic(path: Path, data: Any) -> Path:
+    """Write JSON to ``path`` through a temporary file in the same folder and ``os.replace`` (atomic on POSIX)."""
+
+    def write(tmp: str) -> None:
+        with open(tmp, "w", encoding="utf-8") as out:
+            json.dump(data, out, indent=1, default=_default)
+            out.flush()
+            os.fsync(out.fileno())
+
+    return write_atomic(path, write)
 
 
 class MemberStore:
