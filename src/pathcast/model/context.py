@@ -28,6 +28,13 @@ class BuildContext:
         self.electric_converters = [t for t in self.converters if t.input == ELECTRICITY]
         self.fuel_converters = [t for t in self.converters if t.input != ELECTRICITY]
         self.fuel_generators = [t for t in self.generators if t.fuel is not None]
+        # Generators that burn no fuel, cost nothing per MWh and count as clean: their output only enters the
+        # electricity balance (and the clean share), so availability x capacity less one curtailment per hour shared
+        # by all of them has the same optimum as one output variable and limit row per generator.
+        pooled = bool(self.inputs.solver.get("pooled_curtailment", True))
+        is_pooled = [pooled and t.fuel is None and t.variable_om == 0.0 and t.clean for t in self.generators]
+        self.pooled_generators = [t for t, p in zip(self.generators, is_pooled, strict=True) if p]
+        self.dispatched_generators = [t for t, p in zip(self.generators, is_pooled, strict=True) if not p]
         self.position = {t.name: i for i, t in enumerate(self.capacity_techs)}
         self.Y = len(self.inputs.years)
         self.D = len(self.inputs.day_names)

@@ -24,7 +24,7 @@ def add_fuels(ctx: BuildContext) -> None:
 
     # --- fuel burned by power plants [PJ/yr] -------------------------------------------------------------------
     burners = ctx.fuel_generators
-    gen_pos = {t.name: i for i, t in enumerate(ctx.generators)}
+    gen_pos = {t.name: i for i, t in enumerate(ctx.dispatched_generators)}  # fuel burners are never pooled
     fuel_use = lp.add_variables("fuel_use", ("technology", "year"), (len(burners), Y), "PJ/yr")
     ctx.blocks["fuel_use"] = fuel_use
     if burners:

@@ -53,6 +53,14 @@ def add_policy(ctx: BuildContext) -> None:
         generation = ctx.blocks["generation"].all()[:, active]  # [G, A, D, H]
         weight = ctx.hour_weight[active] / 1000.0  # GWh -> TWh
         r = np.broadcast_to(np.arange(len(active))[:, None, None], weight.shape)
-        for g, t in enumerate(ctx.generators):
+        for g, t in enumerate(ctx.dispatched_generators):
             coef = (float(t.clean) - share[:, None, None]) * weight
             rows.add(r, generation[g], coef)
+        if ctx.pooled_generators:
+            # pooled generators are clean: (1 - share) x (available output - curtailment)
+            coef = (1.0 - share[:, None, None]) * weight
+            capacity = ctx.capacity_columns(ctx.pooled_generators)[:, active]  # [P, A]
+            for p, t in enumerate(ctx.pooled_generators):
+                rows.add(r, np.broadcast_to(capacity[p][:, None, None], r.shape),
+                         coef * np.broadcast_to(t.availability[None], r.shape))
+            rows.add(r, ctx.blocks["curtailment"].all()[active], -coef)

@@ -7,6 +7,7 @@ import pandas as pd
 
 from ..model.build import PathwayModel
 from ..model.capacity import _alive_pairs
+from ..model.dispatch import generation_values
 from ..scenario.inputs import PJ_PER_GWH
 from ..solve import Solution
 
@@ -70,7 +71,7 @@ def extract_tables(model: PathwayModel, solution: Solution) -> dict[str, pd.Data
         energy_twh = (power * hw).sum(axis=(1, 2)) / 1000.0
         yearly_rows.append((name, kind, energy_twh if sign > 0 else np.zeros(ctx.Y), energy_twh if sign < 0 else np.zeros(ctx.Y)))
 
-    generation = value("generation")
+    generation = generation_values(ctx, x)  # [G, Y, D, H] GW, pooled generators' curtailment shared out
     for g, name in enumerate(gen_names):
         add_flow(name, "generator", generation[g], 1.0)
     if ctx.storage:
@@ -95,6 +96,17 @@ def extract_tables(model: PathwayModel, solution: Solution) -> dict[str, pd.Data
     with np.errstate(divide="ignore", invalid="ignore"):
         cf = np.where(cap_values > 0, np.maximum(electricity["generation_twh"], electricity["consumption_twh"]) * 1e6 / (cap_values * 8760.0), np.nan)
     electricity["capacity_factor"] = cf
+    # curtailed energy of generators that cost nothing to run: available output less output [TWh]
+    curtailed = np.zeros(len(electricity))
+    free = [(g, t) for g, t in enumerate(ctx.generators) if t.fuel is None and t.variable_om == 0.0]
+    if free:
+        available = x[ctx.capacity_columns([t for _, t in free])]  # [F, Y] GW
+        for i, (g, t) in enumerate(free):
+            potential = (available[i][:, None, None] * t.availability[None] * hw).sum(axis=(1, 2)) / 1000.0
+            spilled = np.maximum(potential - (generation[g] * hw).sum(axis=(1, 2)) / 1000.0, 0.0)
+            where = np.flatnonzero((electricity["technology"] == t.name).to_numpy() & (electricity["kind"] == "generator").to_numpy())
+            curtailed[where] = spilled
+    electricity["curtailed_twh"] = curtailed
 
     hourly_index = pd.MultiIndex.from_product([years, days, hours], names=["year", "day", "hour"]).to_frame(index=False)
     weight_col = np.broadcast_to(w[None, :, None], (ctx.Y, ctx.D, ctx.H)).ravel()

@@ -7,7 +7,7 @@ table                     columns
 ========================  ============================================================================================
 capacity                  technology, kind, year, capacity_mw, new_mw, retired_mw, early_retired_mw
 storage_energy            technology, year, energy_capacity_mwh, new_mwh
-electricity               technology, kind, year, generation_twh, consumption_twh, capacity_factor
+electricity               technology, kind, year, generation_twh, consumption_twh, capacity_factor, curtailed_twh
 electricity_hourly        year, day, hour, weight_days, technology, power_mw (supply > 0, consumption < 0;
                           rows 'final_demand' and 'unserved' included)
 fuel_flows                year, commodity, technology, role, energy_pj (role: supply, conversion_output,

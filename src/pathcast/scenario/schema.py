@@ -343,6 +343,11 @@ class SolverSettings(_Strict):
     time_limit_s: Annotated[float, Field(gt=0)] | None = None
     threads: Annotated[int, Field(ge=0)] | None = None
     options: dict[str, Any] = Field(default_factory=dict, description="Any further HiGHS option, by its HiGHS name.")
+    pooled_curtailment: bool = Field(
+        True, description="Generators with no fuel and no variable cost offer availability x capacity every hour, "
+        "less one shared curtailment per hour, instead of one output variable and limit row each: the same optimum "
+        "with fewer rows (see README, performance); false builds one per generator."
+    )
 
 
 class Scenario(_Strict):
