@@ -75,12 +75,12 @@ def worker_pathcast(args: argparse.Namespace) -> dict:
 
     if args.prepare_only:
         return prepare_mps(args)
-    started = time.perf_counter()
+    started, cpu_started = time.perf_counter(), time.process_time()
     run = run_scenario(args.scenario, solver={"method": args.method, "time_limit_s": args.time_limit})
-    wall = time.perf_counter() - started
+    wall, cpu = time.perf_counter() - started, time.process_time() - cpu_started
     peak = _peak_rss_mb()
     sol = run.solution
-    out = {"kind": "pathcast", "times": run.times.as_dict(), "wall_s": wall, "peak_rss_mb": peak,
+    out = {"kind": "pathcast", "times": run.times.as_dict(), "wall_s": wall, "cpu_s": cpu, "peak_rss_mb": peak,
            "rows": sol.rows, "columns": sol.columns, "nonzeros": sol.nonzeros, "objective": sol.objective,
            "status": sol.status, "method": sol.method, "options": sol.options, "iterations": sol.iterations}
     offsets = run.model.lp.row_offsets()
@@ -209,7 +209,7 @@ def measure_build(sizes: list[str], args: argparse.Namespace) -> list[dict]:
     rows = []
     out_dir = Path(args.out)
     for size in sizes:
-        scenario = write_scenario(out_dir / "scenarios", size)
+        scenario = write_scenario(out_dir / "scenarios", size, per_generator=args.per_generator)
         mps = out_dir / "mps" / (scenario.stem + ".build.mps")
         mps.parent.mkdir(parents=True, exist_ok=True)
         builds, reads = [], []
@@ -221,7 +221,8 @@ def measure_build(sizes: list[str], args: argparse.Namespace) -> list[dict]:
         overhead = times["build_lp_s"] + times["build_pyomo_s"] + times["handoff_s"] + times["extract_s"]
         cpu = {k: _median([b["cpu_times"][k] for b in builds]) for k in builds[0]["cpu_times"]}
         cpu_overhead = cpu["build_lp_s"] + cpu["build_pyomo_s"] + cpu["handoff_s"] + cpu["extract_s"]
-        row = {"size": size, "rows": builds[0]["rows"], "columns": builds[0]["columns"], "cpu_times": cpu,
+        row = {"size": size, "formulation": "per_generator" if args.per_generator else "pooled",
+               "rows": builds[0]["rows"], "columns": builds[0]["columns"], "cpu_times": cpu,
                "cpu_overhead_us_per_row": cpu_overhead * 1e6 / builds[0]["rows"],
                "nonzeros": builds[0]["nonzeros"], "runs": len(builds), "times": times, "overhead_s": overhead,
                "overhead_us_per_row": overhead * 1e6 / builds[0]["rows"],
@@ -253,14 +254,15 @@ def worker_bare(args: argparse.Namespace) -> dict:
     started = time.perf_counter()
     h.readModel(str(args.mps))
     read_s = time.perf_counter() - started
-    started = time.perf_counter()
+    started, cpu_started = time.perf_counter(), time.process_time()
     h.run()
-    solve_s = time.perf_counter() - started
+    solve_s, solve_cpu_s = time.perf_counter() - started, time.process_time() - cpu_started
     peak = _peak_rss_mb()
     info = h.getInfo()
     status = h.modelStatusToString(h.getModelStatus())
     lp = h.getLp()
-    out = {"kind": "bare", "options": options, "read_s": read_s, "solve_s": solve_s, "peak_rss_mb": peak,
+    out = {"kind": "bare", "options": options, "read_s": read_s, "solve_s": solve_s, "solve_cpu_s": solve_cpu_s,
+           "peak_rss_mb": peak,
            "status": status, "objective": float(info.objective_function_value),
            "rows": int(lp.num_row_), "columns": int(lp.num_col_), "nonzeros": len(lp.a_matrix_.value_),
            "iterations": {"simplex": int(info.simplex_iteration_count), "ipm": int(info.ipm_iteration_count),
@@ -326,7 +328,7 @@ def _case_paths(size: str, args: argparse.Namespace) -> tuple[Path, Path, Path]:
     from scenario_generator import write_scenario
 
     out_dir = Path(args.out)
-    scenario = write_scenario(out_dir / "scenarios", size)
+    scenario = write_scenario(out_dir / "scenarios", size, per_generator=args.per_generator)
     mps = out_dir / "mps" / (scenario.stem + ".mps")
     mps.parent.mkdir(parents=True, exist_ok=True)
     logs = out_dir / "logs"
@@ -359,7 +361,8 @@ def measure_size(size: str, args: argparse.Namespace) -> dict:
                                       "--log-file", str(logs / f"{scenario.stem}.chosen.{r}.log"), *common]))
         if with_defaults:
             default_runs.append(_run_worker(["--worker", "bare", "--mps", str(mps), "--options", "{}", "--check-duals",
-                                             "--log-file", str(logs / f"{scenario.stem}.defaults.{r}.log"), *common]))
+                                             "--log-file", str(logs / f"{scenario.stem}.defaults.{r}.log"),
+                                             *_defaults_limit(args)]))
         say(f"repeat {r + 1}/{repeats}: pathcast {pathcast_runs[-1]['times']['total_s']:.1f} s, bare "
             f"{bare_runs[-1]['read_s'] + bare_runs[-1]['solve_s']:.1f} s"
             + (f", defaults solve {default_runs[-1]['solve_s']:.1f} s" if with_defaults else ""))
@@ -383,7 +386,8 @@ def measure_size(size: str, args: argparse.Namespace) -> dict:
     overhead = times["build_lp_s"] + times["build_pyomo_s"] + times["handoff_s"] + times["extract_s"]
     objective, bare_objective = first["objective"], bare_runs[0]["objective"]
     row = {
-        "size": size, "rows": first["rows"], "columns": first["columns"], "nonzeros": first["nonzeros"],
+        "size": size, "formulation": "per_generator" if args.per_generator else "pooled",
+        "rows": first["rows"], "columns": first["columns"], "nonzeros": first["nonzeros"],
         "runs": len(pathcast_runs), "method": method, "options": json.loads(chosen), "times": times,
         "pathcast_total_s": times["total_s"], "bare_read_s": bare_read, "bare_solve_s": bare_solve,
         "bare_total_s": bare_total, "ratio": times["total_s"] / bare_total,
@@ -419,6 +423,12 @@ def _dual_diffs(result: dict, reference: dict) -> dict:
     return out
 
 
+def _defaults_limit(args: argparse.Namespace) -> list[str]:
+    """Time limit of the HiGHS-defaults solve: --defaults-time-limit, else --time-limit."""
+    limit = args.defaults_time_limit or args.time_limit
+    return ["--time-limit", str(limit)] if limit else []
+
+
 def measure_concurrent(size: str, args: argparse.Namespace) -> dict:
     """One run of pathcast end to end, the bare solver with pathcast's options and (unless --no-defaults) HiGHS defaults, started at the
     same moment (each single-threaded HiGHS; on 2 cores all three share the machine alike). For the national size,
@@ -434,26 +444,46 @@ def measure_concurrent(size: str, args: argparse.Namespace) -> dict:
         "bare": ["--worker", "bare", "--mps", str(mps), "--options", json.dumps(chosen),
                  "--log-file", str(logs / f"{scenario.stem}.chosen.0.log"), *common],
         "defaults": ["--worker", "bare", "--mps", str(mps), "--options", "{}",
-                     "--log-file", str(logs / f"{scenario.stem}.defaults.0.log"), *common],
+                     "--log-file", str(logs / f"{scenario.stem}.defaults.0.log"),
+                     *_defaults_limit(args)],
     }
     if args.no_defaults:
         del cmds["defaults"]
-    procs = {k: subprocess.Popen([sys.executable, str(Path(__file__).resolve()), *v], stdout=subprocess.PIPE,
-                                 stderr=subprocess.PIPE, text=True) for k, v in cmds.items()}
-    results = {}
-    for k, p in procs.items():
-        stdout, stderr = p.communicate()
-        if p.returncode != 0:
-            raise RuntimeError(f"worker {k} failed:\n{stderr[-3000:]}")
-        results[k] = json.loads(stdout.strip().splitlines()[-1])
-        (logs / f"{scenario.stem}.{k}.json").write_text(json.dumps(results[k]))
-        print(f"[{time.strftime('%H:%M:%S')}] {size}: {k} done", file=sys.stderr, flush=True)
+    # at most --at-most solves at a time, started in the order pathcast, defaults, bare: on 2 cores with
+    # --at-most 2 each single-threaded solve has a core of its own, and the long defaults solve overlaps both others
+    order = [k for k in ("pathcast", "defaults", "bare") if k in cmds]
+    slots = args.at_most or len(order)
+    results, running = {}, {}
+    while order or running:
+        while order and len(running) < slots:
+            k = order.pop(0)
+            # output to files, not pipes: a worker's JSON line (hourly duals) outgrows a pipe's buffer
+            out_file, err_file = logs / f"{scenario.stem}.{k}.out", logs / f"{scenario.stem}.{k}.err"
+            running[k] = subprocess.Popen([sys.executable, str(Path(__file__).resolve()), *cmds[k]],
+                                          stdout=out_file.open("w"), stderr=err_file.open("w"))
+            print(f"[{time.strftime('%H:%M:%S')}] {size}: {k} started", file=sys.stderr, flush=True)
+        finished = [k for k, p in running.items() if p.poll() is not None]
+        if not finished:
+            time.sleep(1.0)
+            continue
+        for k in finished:
+            code = running.pop(k).returncode
+            stdout = (logs / f"{scenario.stem}.{k}.out").read_text()
+            if code != 0 or not stdout.strip():
+                stderr = (logs / f"{scenario.stem}.{k}.err").read_text()
+                raise RuntimeError(f"worker {k} failed:\n{stderr[-3000:]}")
+            results[k] = json.loads(stdout.strip().splitlines()[-1])
+            (logs / f"{scenario.stem}.{k}.json").write_text(json.dumps(results[k]))
+            print(f"[{time.strftime('%H:%M:%S')}] {size}: {k} done", file=sys.stderr, flush=True)
     first, bare, dflt = results["pathcast"], results["bare"], results.get("defaults")
     times = first["times"]
     overhead = times["build_lp_s"] + times["build_pyomo_s"] + times["handoff_s"] + times["extract_s"]
     row = {
-        "size": size, "rows": first["rows"], "columns": first["columns"], "nonzeros": first["nonzeros"],
-        "runs": 1, "concurrent": True, "method": args.method, "options": chosen, "times": times,
+        "size": size, "formulation": "per_generator" if args.per_generator else "pooled",
+        "rows": first["rows"], "columns": first["columns"], "nonzeros": first["nonzeros"],
+        "runs": 1, "concurrent": True, "at_most": args.at_most, "method": args.method,
+        "options": chosen, "times": times, "pathcast_cpu_s": first.get("cpu_s"),
+        "bare_solve_cpu_s": bare.get("solve_cpu_s"),
         "pathcast_total_s": times["total_s"], "bare_read_s": bare["read_s"], "bare_solve_s": bare["solve_s"],
         "bare_total_s": bare["read_s"] + bare["solve_s"], "ratio": times["total_s"] / (bare["read_s"] + bare["solve_s"]),
         "overhead_s": overhead, "overhead_us_per_row": overhead * 1e6 / first["rows"],
@@ -467,6 +497,11 @@ def measure_concurrent(size: str, args: argparse.Namespace) -> dict:
         row.update({
             "defaults_solve_s": dflt["solve_s"], "defaults_status": dflt["status"],
             "speedup_vs_defaults": dflt["solve_s"] / bare["solve_s"],
+            "defaults_solve_cpu_s": dflt.get("solve_cpu_s"),
+            "speedup_vs_defaults_cpu": (dflt["solve_cpu_s"] / bare["solve_cpu_s"]
+                                        if dflt.get("solve_cpu_s") and bare.get("solve_cpu_s") else None),
+            # a defaults solve stopped by its time limit gives a lower bound on the speed-up
+            "speedup_is_lower_bound": dflt["status"] != "Optimal",
             "defaults_objective_rel_diff": abs(dflt["objective"] - bare["objective"]) / max(abs(bare["objective"]), 1e-12),
             "defaults_duals": _dual_diffs(dflt, first),
         })
@@ -503,6 +538,12 @@ def main(argv: list[str] | None = None) -> int:
     parser.add_argument("--no-defaults", action="store_true", help="skip the HiGHS-defaults comparison")
     parser.add_argument("--concurrent", action="store_true", help="one run each, pathcast, bare and defaults started "
                         "together (for sizes whose solves take many minutes)")
+    parser.add_argument("--at-most", type=int, default=None, help="with --concurrent: run at most this many of the "
+                        "solves at a time, started in the order pathcast, defaults, bare (2 on a 2-core machine)")
+    parser.add_argument("--defaults-time-limit", type=float, default=None, help="time limit of the defaults solve "
+                        "[s]; one that stops there gives a lower bound on the speed-up")
+    parser.add_argument("--per-generator", action="store_true", help="build the LP with one output variable and "
+                        "limit row per generator (solver.pooled_curtailment: false), the formulation before pooling")
     parser.add_argument("--out", default=str(HERE / "out"), help="folder for scenarios, MPS files, logs and JSON")
     parser.add_argument("--json", default=None, help="file for the result rows (default <out>/results-<time>.json)")
     parser.add_argument("--report", nargs="+", metavar="JSON", default=None,

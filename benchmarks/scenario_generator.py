@@ -169,9 +169,16 @@ def scenario_dict(years: int, hours: int, techs: int, seed: int = 7) -> dict:
     }
 
 
-def write_scenario(folder: Path, size: str, seed: int = 7) -> Path:
+def write_scenario(folder: Path, size: str, seed: int = 7, per_generator: bool = False) -> Path:
+    """Write the scenario of ``size``; ``per_generator`` builds one output variable and limit row per generator
+    instead of pooling the curtailment of free generators (``solver.pooled_curtailment: false``)."""
     years, hours, techs = parse_size(size)
     folder.mkdir(parents=True, exist_ok=True)
-    path = folder / f"bench_{years}x{hours}x{techs}.yaml"
-    path.write_text(yaml.safe_dump(scenario_dict(years, hours, techs, seed), sort_keys=False, width=120))
+    data = scenario_dict(years, hours, techs, seed)
+    suffix = ""
+    if per_generator:
+        data["solver"] = {"pooled_curtailment": False}
+        suffix = ".per_generator"
+    path = folder / f"bench_{years}x{hours}x{techs}{suffix}.yaml"
+    path.write_text(yaml.safe_dump(data, sort_keys=False, width=120))
     return path
