@@ -336,6 +336,28 @@ def _case_paths(size: str, args: argparse.Namespace) -> tuple[Path, Path, Path]:
     return scenario, mps, logs
 
 
+def _per_generator_case(size: str, args: argparse.Namespace) -> tuple[Path, dict]:
+    """MPS file of the per-generator formulation of ``size`` (the LP before pooling), written through pathcast."""
+    per_args = argparse.Namespace(**{**vars(args), "per_generator": True})
+    scenario, mps, _ = _case_paths(size, per_args)
+    prep = _run_worker(["--worker", "pathcast", "--prepare-only", "--scenario", str(scenario), "--write-mps", str(mps)])
+    return mps, prep
+
+
+def _baseline_fields(runs: list[dict], prep: dict, bare_solve_s: float, bare_solve_cpu_s: float | None,
+                     bare_objective: float) -> dict:
+    """Row fields of HiGHS defaults on the per-generator LP, against pathcast's options on pathcast's LP."""
+    solve = _median([r["solve_s"] for r in runs])
+    cpu = _median([r["solve_cpu_s"] for r in runs]) if all("solve_cpu_s" in r for r in runs) else None
+    return {"baseline_rows": prep["rows"], "baseline_columns": runs[0]["columns"], "baseline_nonzeros": runs[0]["nonzeros"],
+            "baseline_defaults_solve_s": solve, "baseline_defaults_solve_cpu_s": cpu,
+            "baseline_defaults_status": runs[0]["status"], "baseline_objective": runs[0]["objective"],
+            "speedup_vs_baseline": solve / bare_solve_s,
+            "speedup_vs_baseline_cpu": cpu / bare_solve_cpu_s if cpu and bare_solve_cpu_s else None,
+            "baseline_is_lower_bound": runs[0]["status"] != "Optimal",
+            "baseline_objective_rel_diff": abs(runs[0]["objective"] - bare_objective) / max(abs(bare_objective), 1e-12)}
+
+
 def measure_size(size: str, args: argparse.Namespace) -> dict:
     scenario, mps, logs = _case_paths(size, args)
     common = ["--time-limit", str(args.time_limit)] if args.time_limit else []
@@ -344,7 +366,8 @@ def measure_size(size: str, args: argparse.Namespace) -> dict:
     def say(message: str) -> None:
         print(f"[{time.strftime('%H:%M:%S')}] {size}: {message}", file=sys.stderr, flush=True)
 
-    pathcast_runs, bare_runs, default_runs = [], [], []
+    pathcast_runs, bare_runs, default_runs, baseline_runs = [], [], [], []
+    baseline_mps, baseline_prep = _per_generator_case(size, args) if args.against_per_generator else (None, None)
     first = _run_worker(["--worker", "pathcast", "--scenario", str(scenario), "--method", method,
                          "--write-mps", str(mps), *common])
     pathcast_runs.append(first)
@@ -363,6 +386,10 @@ def measure_size(size: str, args: argparse.Namespace) -> dict:
             default_runs.append(_run_worker(["--worker", "bare", "--mps", str(mps), "--options", "{}", "--check-duals",
                                              "--log-file", str(logs / f"{scenario.stem}.defaults.{r}.log"),
                                              *_defaults_limit(args)]))
+        if baseline_mps is not None:
+            baseline_runs.append(_run_worker(["--worker", "bare", "--mps", str(baseline_mps), "--options", "{}",
+                                              "--log-file", str(logs / f"{scenario.stem}.per_generator.defaults.{r}.log"),
+                                              *_defaults_limit(args)]))
         say(f"repeat {r + 1}/{repeats}: pathcast {pathcast_runs[-1]['times']['total_s']:.1f} s, bare "
             f"{bare_runs[-1]['read_s'] + bare_runs[-1]['solve_s']:.1f} s"
             + (f", defaults solve {default_runs[-1]['solve_s']:.1f} s" if with_defaults else ""))
@@ -406,6 +433,9 @@ def measure_size(size: str, args: argparse.Namespace) -> dict:
         row["defaults_status"] = default_runs[0]["status"]
         row["speedup_vs_defaults"] = row["defaults_solve_s"] / bare_solve
         row["defaults_objective_rel_diff"] = abs(default_runs[0]["objective"] - bare_objective) / max(abs(bare_objective), 1e-12)
+    if baseline_runs:
+        row.update(_baseline_fields(baseline_runs, baseline_prep, bare_solve,
+                                    _median([b["solve_cpu_s"] for b in bare_runs]), bare_objective))
     return row
 
 
@@ -449,9 +479,14 @@ def measure_concurrent(size: str, args: argparse.Namespace) -> dict:
     }
     if args.no_defaults:
         del cmds["defaults"]
+    if args.against_per_generator:
+        baseline_mps, baseline_prep = _per_generator_case(size, args)
+        cmds["baseline"] = ["--worker", "bare", "--mps", str(baseline_mps), "--options", "{}",
+                            "--log-file", str(logs / f"{scenario.stem}.per_generator.defaults.0.log"),
+                            *_defaults_limit(args)]
     # at most --at-most solves at a time, started in the order pathcast, defaults, bare: on 2 cores with
     # --at-most 2 each single-threaded solve has a core of its own, and the long defaults solve overlaps both others
-    order = [k for k in ("pathcast", "defaults", "bare") if k in cmds]
+    order = [k for k in ("pathcast", "defaults", "bare", "baseline") if k in cmds]
     slots = args.at_most or len(order)
     results, running = {}, {}
     while order or running:
@@ -505,6 +540,9 @@ def measure_concurrent(size: str, args: argparse.Namespace) -> dict:
             "defaults_objective_rel_diff": abs(dflt["objective"] - bare["objective"]) / max(abs(bare["objective"]), 1e-12),
             "defaults_duals": _dual_diffs(dflt, first),
         })
+    if "baseline" in results:
+        row.update(_baseline_fields([results["baseline"]], baseline_prep, bare["solve_s"], bare.get("solve_cpu_s"),
+                                    bare["objective"]))
     row["memory_ratio"] = row["peak_rss_mb"] / row["bare_peak_rss_mb"]
     return row
 
@@ -544,6 +582,9 @@ def main(argv: list[str] | None = None) -> int:
                         "[s]; one that stops there gives a lower bound on the speed-up")
     parser.add_argument("--per-generator", action="store_true", help="build the LP with one output variable and "
                         "limit row per generator (solver.pooled_curtailment: false), the formulation before pooling")
+    parser.add_argument("--against-per-generator", action="store_true", help="also solve the per-generator "
+                        "formulation with HiGHS defaults: the speed-up of pathcast's whole strategy (formulation + "
+                        "options) over the LP a plain formulation gives")
     parser.add_argument("--out", default=str(HERE / "out"), help="folder for scenarios, MPS files, logs and JSON")
     parser.add_argument("--json", default=None, help="file for the result rows (default <out>/results-<time>.json)")
     parser.add_argument("--report", nargs="+", metavar="JSON", default=None,
