@@ -64,8 +64,9 @@ def write_report(files: list[Path], target: Path, demo: Path | None = None) -> N
     out = ["# Benchmark results", "",
            "Produced by `benchmarks/run_benchmarks.py` (synthetic scenarios from `benchmarks/scenario_generator.py`) and "
            "`python benchmarks/run_benchmarks.py --report <json files>`. Every number is from a run on this machine; "
-           "the machine is shared (other developers ran test suites at the same time), so single timings vary by "
-           "tens of per cent: compare the columns of one row, which were measured side by side, alternately.", "",
+           "with 2 cores, what runs on the other core moves a solve's time by up to 15 per cent (the same LP and "
+           "options: 410-476 s at national size), so compare the columns of one row, which were measured side by "
+           "side, alternately (see How these numbers were taken).", "",
            f"Machine: {meta.get('cores')} cores (CPU only). Versions: "
            + ", ".join(f"{k} {v}" for k, v in meta.get("versions", {}).items()) + ".", "",
            "## Pathcast end to end against the bare solver", "",
@@ -86,6 +87,20 @@ def write_report(files: list[Path], target: Path, demo: Path | None = None) -> N
             f"| {r['ratio']:.3f} | {r['overhead_us_per_row']:.1f} | {r['peak_rss_mb']:.0f} / {r['bare_peak_rss_mb']:.0f} "
             f"| {r['memory_ratio']:.2f} | {_defaults_cell(r)} "
             f"| {_speedup_cell(r)} | {r['objective_rel_diff']:.1e} |")
+    for r in rows:
+        ref = r.get("speedup_reference_bare_solve_s")
+        if ref:
+            later = [f"{r['defaults_solve_s'] / r['bare_solve_s']:.2f}x"]
+            if "baseline_defaults_solve_s" in r:
+                later.append(f"{r['baseline_defaults_solve_s'] / r['bare_solve_s']:.2f}x")
+            out += ["", f"{r['size']}: the times of this row are from a run of pathcast and the bare solver one "
+                    f"after the other; the defaults were solved in an earlier run, and the speed-ups divide by the "
+                    f"bare solve of that run ({ref:.1f} s). Against this row's {r['bare_solve_s']:.1f} s they are "
+                    + " and ".join(later) + "."]
+            first = r.get("first_pair")
+            if first:
+                out.append(f"The earlier run's pair: pathcast {first['pathcast_total_s']:.1f} s, bare read + solve "
+                           f"{first['bare_total_s']:.1f} s, ratio {first['ratio']:.3f}.")
     out.append("")
     strategy_rows = [r for r in rows if "baseline_defaults_solve_s" in r]
     if strategy_rows:
@@ -103,7 +118,8 @@ def write_report(files: list[Path], target: Path, demo: Path | None = None) -> N
             base_cell = f"> {base:.0f} (time limit)" if r.get("baseline_is_lower_bound") else f"{base:.1f}"
             mark = ">= " if r.get("baseline_is_lower_bound") else ""
             cpu = r.get("speedup_vs_baseline_cpu")
-            out.append(f"| {r['size']} | {r['rows']:,} / {r['baseline_rows']:,} | {r['bare_solve_s']:.1f} "
+            out.append(f"| {r['size']} | {r['rows']:,} / {r['baseline_rows']:,} "
+                       f"| {r.get('speedup_reference_bare_solve_s') or r['bare_solve_s']:.1f} "
                        f"| {_defaults_cell(r)} | {base_cell} | {_speedup_cell(r)} "
                        f"| {mark}{r['speedup_vs_baseline']:.2f} | {'-' if cpu is None else f'{mark}{cpu:.2f}'} "
                        f"| {r['baseline_objective_rel_diff']:.1e} |")
