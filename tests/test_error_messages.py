@@ -151,6 +151,11 @@ def test_unknown_solver_method_in_scenario(tmp_path):
     assert "solver.method: got 'barrier'; expected one of 'auto', 'simplex', 'ipm', 'ipm-crossover' or 'pdlp'" in message
 
 
+def test_pooled_curtailment_must_be_true_or_false(tmp_path):
+    message = _error(tmp_path, lambda m: m.update(solver={"pooled_curtailment": "maybe"}))
+    assert "solver.pooled_curtailment: got 'maybe'; expected a valid boolean" in message
+
+
 def test_solver_failure_is_exit_code_4(tmp_path, capsys):
     code = main(["run", str(DATA / "tiny.yaml"), "--out", str(tmp_path / "out"), "--time-limit", "0.00001", "--quiet"])
     assert code == 4
