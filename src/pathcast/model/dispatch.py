@@ -5,7 +5,7 @@ Generators that burn no fuel and cost nothing per MWh (wind, solar, run-of-river
 *pooled*: each offers availability x capacity in every hour, and one curtailment variable per hour, at most the pooled
 output of that hour, takes away what the system cannot use. Curtailing any of them is free, so which one is curtailed
 does not change the optimum; pooling removes one output variable and one limit row per pooled generator and hour (a
-fifth of the rows of the national benchmark). Results split an hour's curtailment over the pooled generators in
+quarter of the rows of the national benchmark). Results split an hour's curtailment over the pooled generators in
 proportion to their available output (:func:`generation_values`).
 """
 
