@@ -32,16 +32,22 @@ def _fit(rows: list[dict]) -> dict | None:
             "overhead": float(np.polyfit(x, np.log([p[2] for p in pts]), 1)[0])}
 
 
+def _time_cell(value: float, stopped: bool) -> str:
+    """A solve time [s]; '> T (time limit)' for a solve HiGHS stopped before the optimum."""
+    return f"> {value:.0f} (time limit)" if stopped else f"{value:.1f}"
+
+
+def _ratio_cell(value: float | None, stopped: bool) -> str:
+    """A speed-up; a lower bound ('>=') where the slower solve was stopped by its time limit."""
+    return "-" if value is None else (f">= {value:.2f}" if stopped else f"{value:.2f}")
+
+
 def _defaults_cell(row: dict) -> str:
-    """Defaults solve time; '> T (time limit)' where HiGHS's defaults were stopped before the optimum."""
-    value = row.get("defaults_solve_s", math.nan)
-    return f"> {value:.0f} (time limit)" if row.get("speedup_is_lower_bound") else f"{value:.1f}"
+    return _time_cell(row.get("defaults_solve_s", math.nan), bool(row.get("speedup_is_lower_bound")))
 
 
 def _speedup_cell(row: dict) -> str:
-    """Speed-up against the defaults; a lower bound where the defaults hit their time limit."""
-    value = row.get("speedup_vs_defaults", math.nan)
-    return f">= {value:.2f}" if row.get("speedup_is_lower_bound") else f"{value:.2f}"
+    return _ratio_cell(row.get("speedup_vs_defaults", math.nan), bool(row.get("speedup_is_lower_bound")))
 
 
 def write_report(files: list[Path], target: Path, demo: Path | None = None) -> None:
@@ -114,14 +120,12 @@ def write_report(files: list[Path], target: Path, demo: Path | None = None) -> N
                 "| defaults, per-generator LP | speed-up, options alone | speed-up, formulation + options "
                 "| same, CPU time | objective rel. diff |", "|" + "---|" * 9]
         for r in strategy_rows:
-            base = r["baseline_defaults_solve_s"]
-            base_cell = f"> {base:.0f} (time limit)" if r.get("baseline_is_lower_bound") else f"{base:.1f}"
-            mark = ">= " if r.get("baseline_is_lower_bound") else ""
-            cpu = r.get("speedup_vs_baseline_cpu")
+            stopped = bool(r.get("baseline_is_lower_bound"))
             out.append(f"| {r['size']} | {r['rows']:,} / {r['baseline_rows']:,} "
                        f"| {r.get('speedup_reference_bare_solve_s') or r['bare_solve_s']:.1f} "
-                       f"| {_defaults_cell(r)} | {base_cell} | {_speedup_cell(r)} "
-                       f"| {mark}{r['speedup_vs_baseline']:.2f} | {'-' if cpu is None else f'{mark}{cpu:.2f}'} "
+                       f"| {_defaults_cell(r)} | {_time_cell(r['baseline_defaults_solve_s'], stopped)} "
+                       f"| {_speedup_cell(r)} | {_ratio_cell(r['speedup_vs_baseline'], stopped)} "
+                       f"| {_ratio_cell(r.get('speedup_vs_baseline_cpu'), stopped)} "
                        f"| {r['baseline_objective_rel_diff']:.1e} |")
         out.append("")
     if build_rows:

@@ -432,6 +432,7 @@ def measure_size(size: str, args: argparse.Namespace) -> dict:
         row["defaults_solve_s"] = _median([d["solve_s"] for d in default_runs])
         row["defaults_status"] = default_runs[0]["status"]
         row["speedup_vs_defaults"] = row["defaults_solve_s"] / bare_solve
+        row["speedup_is_lower_bound"] = default_runs[0]["status"] != "Optimal"
         row["defaults_objective_rel_diff"] = abs(default_runs[0]["objective"] - bare_objective) / max(abs(bare_objective), 1e-12)
     if baseline_runs:
         row.update(_baseline_fields(baseline_runs, baseline_prep, bare_solve,
@@ -494,8 +495,9 @@ def measure_concurrent(size: str, args: argparse.Namespace) -> dict:
             k = order.pop(0)
             # output to files, not pipes: a worker's JSON line (hourly duals) outgrows a pipe's buffer
             out_file, err_file = logs / f"{scenario.stem}.{k}.out", logs / f"{scenario.stem}.{k}.err"
-            running[k] = subprocess.Popen([sys.executable, str(Path(__file__).resolve()), *cmds[k]],
-                                          stdout=out_file.open("w"), stderr=err_file.open("w"))
+            with out_file.open("w") as out, err_file.open("w") as err:  # the child keeps its own copies
+                running[k] = subprocess.Popen([sys.executable, str(Path(__file__).resolve()), *cmds[k]],
+                                              stdout=out, stderr=err)
             print(f"[{time.strftime('%H:%M:%S')}] {size}: {k} started", file=sys.stderr, flush=True)
         finished = [k for k, p in running.items() if p.poll() is not None]
         if not finished:
@@ -602,17 +604,9 @@ def main(argv: list[str] | None = None) -> int:
     parser.add_argument("--log-file", help=argparse.SUPPRESS)
     args = parser.parse_args(argv)
 
-    if args.worker == "pathcast":
-        print(json.dumps(worker_pathcast(args)))
-        return 0
-    if args.worker == "bare":
-        print(json.dumps(worker_bare(args)))
-        return 0
-    if args.worker == "build":
-        print(json.dumps(worker_build(args)))
-        return 0
-    if args.worker == "read":
-        print(json.dumps(worker_read(args)))
+    workers = {"pathcast": worker_pathcast, "bare": worker_bare, "build": worker_build, "read": worker_read}
+    if args.worker:
+        print(json.dumps(workers[args.worker](args)))
         return 0
 
     from pathcast.pipeline import package_versions

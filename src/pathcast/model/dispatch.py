@@ -15,7 +15,7 @@ import numpy as np
 
 from .context import BuildContext
 
-__all__ = ["add_dispatch", "add_electricity_balance", "generation_values", "pooled_potential"]
+__all__ = ["add_dispatch", "add_electricity_balance", "add_pooled_output", "available_output", "generation_values"]
 
 
 def add_dispatch(ctx: BuildContext) -> None:
@@ -46,16 +46,19 @@ def add_dispatch(ctx: BuildContext) -> None:
         limit = lp.add_rows("curtailment_limit", ("year", "day", "hour"), (Y, D, H), "<=", "GW")
         rows = limit.local()
         limit.add(rows, curtailment.all(), 1.0)
-        _add_pooled_output(ctx, limit, rows, -1.0)
+        add_pooled_output(ctx, limit, rows, -1.0)
 
 
-def _add_pooled_output(ctx: BuildContext, block, rows: np.ndarray, sign: float,
-                       weight: np.ndarray | float = 1.0) -> None:
-    """Add sign x weight x availability x capacity of every pooled generator to the [Y, D, H] ``rows``."""
+def add_pooled_output(ctx: BuildContext, block, rows: np.ndarray, coef: np.ndarray | float,
+                      years: np.ndarray | None = None) -> None:
+    """Add coef x availability x capacity of every pooled generator to ``rows`` [years, D, H] of ``block``
+    (all years unless ``years`` gives their positions); ``coef`` broadcasts against ``rows``."""
     capacity = ctx.capacity_columns(ctx.pooled_generators)  # [P, Y]
+    if years is not None:
+        capacity = capacity[:, years]
     for p, t in enumerate(ctx.pooled_generators):
         block.add(rows, np.broadcast_to(capacity[p][:, None, None], rows.shape),
-                  sign * np.broadcast_to(t.availability[None], rows.shape) * weight)
+                  coef * np.broadcast_to(t.availability[None], rows.shape))
 
 
 def add_electricity_balance(ctx: BuildContext) -> None:
@@ -69,7 +72,7 @@ def add_electricity_balance(ctx: BuildContext) -> None:
     for g in range(generation.shape[0]):
         balance.add(rows, generation[g], 1.0)
     if ctx.pooled_generators:
-        _add_pooled_output(ctx, balance, rows, 1.0)
+        add_pooled_output(ctx, balance, rows, 1.0)
         balance.add(rows, ctx.blocks["curtailment"].all(), -1.0)
     balance.add(rows, ctx.blocks["unserved"].all(), 1.0)
     if "discharge" in ctx.blocks:
@@ -81,12 +84,12 @@ def add_electricity_balance(ctx: BuildContext) -> None:
             balance.add(rows, ctx.blocks["converter_power"].all()[c], -1.0)
 
 
-def pooled_potential(ctx: BuildContext, x: np.ndarray) -> np.ndarray:
-    """Available output [GW] of each pooled generator, [P, Y, D, H], from the primal values ``x``."""
-    if not ctx.pooled_generators:
+def available_output(ctx: BuildContext, techs: list, x: np.ndarray) -> np.ndarray:
+    """Availability x capacity [GW] of the given generators, [len(techs), Y, D, H], from the primal values ``x``."""
+    if not techs:
         return np.zeros((0, ctx.Y, ctx.D, ctx.H))
-    capacity = x[ctx.capacity_columns(ctx.pooled_generators)]  # [P, Y]
-    availability = np.stack([t.availability for t in ctx.pooled_generators])  # [P, D, H]
+    capacity = x[ctx.capacity_columns(techs)]  # [T, Y]
+    availability = np.stack([t.availability for t in techs])  # [T, D, H]
     return capacity[:, :, None, None] * availability[:, None, :, :]
 
 
@@ -101,7 +104,7 @@ def generation_values(ctx: BuildContext, x: np.ndarray) -> np.ndarray:
     for i, t in enumerate(ctx.dispatched_generators):
         out[position[t.name]] = dispatched[i]
     if ctx.pooled_generators:
-        potential = pooled_potential(ctx, x)
+        potential = available_output(ctx, ctx.pooled_generators, x)
         total = potential.sum(axis=0)
         curtailed = np.clip(x[ctx.blocks["curtailment"].all()], 0.0, None)
         kept = np.where(total > 0, 1.0 - np.minimum(curtailed, total) / np.where(total > 0, total, 1.0), 0.0)

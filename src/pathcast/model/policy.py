@@ -6,6 +6,7 @@ from __future__ import annotations
 import numpy as np
 
 from .context import BuildContext
+from .dispatch import add_pooled_output
 
 __all__ = ["add_policy"]
 
@@ -59,8 +60,5 @@ def add_policy(ctx: BuildContext) -> None:
         if ctx.pooled_generators:
             # pooled generators are clean: (1 - share) x (available output - curtailment)
             coef = (1.0 - share[:, None, None]) * weight
-            capacity = ctx.capacity_columns(ctx.pooled_generators)[:, active]  # [P, A]
-            for p, t in enumerate(ctx.pooled_generators):
-                rows.add(r, np.broadcast_to(capacity[p][:, None, None], r.shape),
-                         coef * np.broadcast_to(t.availability[None], r.shape))
+            add_pooled_output(ctx, rows, r, coef, years=active)
             rows.add(r, ctx.blocks["curtailment"].all()[active], -coef)

@@ -7,7 +7,7 @@ import pandas as pd
 
 from ..model.build import PathwayModel
 from ..model.capacity import _alive_pairs
-from ..model.dispatch import generation_values
+from ..model.dispatch import available_output, generation_values
 from ..scenario.inputs import PJ_PER_GWH
 from ..solve import Solution
 
@@ -100,10 +100,9 @@ def extract_tables(model: PathwayModel, solution: Solution) -> dict[str, pd.Data
     curtailed = np.zeros(len(electricity))
     free = [(g, t) for g, t in enumerate(ctx.generators) if t.fuel is None and t.variable_om == 0.0]
     if free:
-        available = x[ctx.capacity_columns([t for _, t in free])]  # [F, Y] GW
+        available = available_output(ctx, [t for _, t in free], x)  # [F, Y, D, H] GW
         for i, (g, t) in enumerate(free):
-            potential = (available[i][:, None, None] * t.availability[None] * hw).sum(axis=(1, 2)) / 1000.0
-            spilled = np.maximum(potential - (generation[g] * hw).sum(axis=(1, 2)) / 1000.0, 0.0)
+            spilled = np.maximum(((available[i] - generation[g]) * hw).sum(axis=(1, 2)) / 1000.0, 0.0)
             where = np.flatnonzero((electricity["technology"] == t.name).to_numpy() & (electricity["kind"] == "generator").to_numpy())
             curtailed[where] = spilled
     electricity["curtailed_twh"] = curtailed
