@@ -29,10 +29,17 @@ from scenario_generator import write_scenario  # noqa: E402
 
 
 def _old_module(commit: str, path: str, name: str, folder: Path):
-    text = subprocess.run(["git", "-C", str(HERE.parent), "show", f"{commit}:{path}"], capture_output=True, text=True,
-                          check=True).stdout
-    text = (text.replace("from .linear_program", "from pathcast.model.linear_program")
-                .replace("from .errors", "from pathcast.errors").replace("from .model.pyomo_model", "from pathcast.model.pyomo_model"))
+    text = subprocess.run(
+        ["git", "-C", str(HERE.parent), "show", f"{commit}:{path}"],
+        capture_output=True,
+        text=True,
+        check=True,
+    ).stdout
+    text = (
+        text.replace("from .linear_program", "from pathcast.model.linear_program")
+        .replace("from .errors", "from pathcast.errors")
+        .replace("from .model.pyomo_model", "from pathcast.model.pyomo_model")
+    )
     file = folder / f"{name}.py"
     file.write_text(text)
     spec = importlib.util.spec_from_file_location(name, file)
@@ -66,15 +73,22 @@ def main() -> None:
             done = time.perf_counter()
             times[name]["build_pyomo_s"].append(built - started)
             times[name]["handoff_s"].append(done - built)
-            summary[name] = (lp.num_row_, lp.num_col_, len(lp.a_matrix_.value_), float(np.sum(lp.col_cost_)),
-                             float(np.sum(lp.a_matrix_.value_)))
+            summary[name] = (
+                lp.num_row_,
+                lp.num_col_,
+                len(lp.a_matrix_.value_),
+                float(np.sum(lp.col_cost_)),
+                float(np.sum(lp.a_matrix_.value_)),
+            )
             del handles, lp
     assert summary["before"] == summary["current"], summary
     rows = matrix.shape[0]
     for name, stage in times.items():
         b, h = statistics.median(stage["build_pyomo_s"]), statistics.median(stage["handoff_s"])
-        print(f"{args.size} {name:<8} build Pyomo {b:6.2f} s  hand-off (compile + HighsLp) {h:6.2f} s  "
-              f"together {(b + h) * 1e6 / rows:5.1f} us/row  ({rows:,} rows, {args.repeats} runs)")
+        print(
+            f"{args.size} {name:<8} build Pyomo {b:6.2f} s  hand-off (compile + HighsLp) {h:6.2f} s  "
+            f"together {(b + h) * 1e6 / rows:5.1f} us/row  ({rows:,} rows, {args.repeats} runs)"
+        )
 
 
 if __name__ == "__main__":

@@ -50,7 +50,9 @@ inputs:
 
 def _ensemble(folder: Path, base: Path, members: int, warm: bool, tag: str) -> Path:
     path = folder / f"{tag}.yaml"
-    path.write_text(ENSEMBLE.format(tag=tag, base=base, members=members, warm=str(warm).lower()), encoding="utf-8")
+    path.write_text(
+        ENSEMBLE.format(tag=tag, base=base, members=members, warm=str(warm).lower()), encoding="utf-8"
+    )
     return path
 
 
@@ -58,15 +60,18 @@ def _import_stack() -> None:
     import pathcast.ensemble.worker  # noqa: F401  (pyomo, highspy, pydantic models, pandas)
 
 
-def _timed_cluster_run(spec_path: Path, out: Path, workers: int, basis_from: Path) -> tuple[float, object, float]:
+def _timed_cluster_run(
+    spec_path: Path, out: Path, workers: int, basis_from: Path
+) -> tuple[float, object, float]:
     from distributed import Client, LocalCluster
 
     from pathcast.ensemble import run_ensemble
 
     shutil.copytree(basis_from / "basis", out / "basis")
     started = time.perf_counter()
-    cluster = LocalCluster(n_workers=workers, threads_per_worker=1, processes=True, dashboard_address=None,
-                           silence_logs=40)
+    cluster = LocalCluster(
+        n_workers=workers, threads_per_worker=1, processes=True, dashboard_address=None, silence_logs=40
+    )
     client = Client(cluster)
     client.run(_import_stack)  # imports belong to the worker's start-up, not to its first member
     startup = time.perf_counter() - started
@@ -83,7 +88,9 @@ def _timed_cluster_run(spec_path: Path, out: Path, workers: int, basis_from: Pat
 def main(argv: list[str] | None = None) -> int:
     parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     parser.add_argument("--members", type=int, default=6, help="members of the throughput runs")
-    parser.add_argument("--cold", type=int, default=2, help="members solved from scratch for the re-solve saving")
+    parser.add_argument(
+        "--cold", type=int, default=2, help="members solved from scratch for the re-solve saving"
+    )
     parser.add_argument("--scenario", type=Path, default=ROOT / "scenarios" / "demo" / "budget.yaml")
     parser.add_argument("--results", type=Path, default=ROOT / "benchmarks" / "ENSEMBLE_RESULTS.md")
     args = parser.parse_args(argv)
@@ -106,7 +113,8 @@ def main(argv: list[str] | None = None) -> int:
     walls, runs, startups = {}, {}, {}
     for workers in (1, 2):
         walls[workers], runs[workers], startups[workers] = _timed_cluster_run(
-            warm_file, work / f"w{workers}", workers, reference)
+            warm_file, work / f"w{workers}", workers, reference
+        )
         assert runs[workers].solved_now == args.members, runs[workers]
     rate = {w: args.members / walls[w] * 60.0 for w in walls}
     # separate the machine from the runner: members slowed by CPUs shared with other programs take longer each,
@@ -124,8 +132,10 @@ def main(argv: list[str] | None = None) -> int:
     steady = records[1:] or records
     steady_inside = statistics.median(r["times"]["member_s"] - r["times"]["solve_s"] for r in steady)
     steady_solve = statistics.median(r["times"]["solve_s"] for r in steady)
-    parts = {k: statistics.mean(r["times"].get(k, 0.0) for r in records)
-             for k in ("validate_s", "inputs_s", "build_lp_s", "handoff_s", "extract_s")}
+    parts = {
+        k: statistics.mean(r["times"].get(k, 0.0) for r in records)
+        for k in ("validate_s", "inputs_s", "build_lp_s", "handoff_s", "extract_s")
+    }
     paths = sorted({r["solver"]["path"] for r in records})
     warm_iterations = statistics.mean(r["solver"]["iterations"]["simplex"] for r in records)
 
@@ -137,8 +147,13 @@ def main(argv: list[str] | None = None) -> int:
     same = [r for r in records if r["hash"] in {c["hash"] for c in cold_records}]
     warm_member = statistics.mean(r["times"]["member_s"] for r in same)
     warm_solve = statistics.mean(r["times"]["solve_s"] for r in same)
-    gap = max(abs(c["headline"]["objective_million"] - w["headline"]["objective_million"]) /
-              abs(c["headline"]["objective_million"]) for c in cold_records for w in same if w["hash"] == c["hash"])
+    gap = max(
+        abs(c["headline"]["objective_million"] - w["headline"]["objective_million"])
+        / abs(c["headline"]["objective_million"])
+        for c in cold_records
+        for w in same
+        if w["hash"] == c["hash"]
+    )
     cold_method = cold_records[0]["solver"]["method"]
     cold_iter = cold_records[0]["solver"]["iterations"]
 
@@ -182,13 +197,17 @@ def main(argv: list[str] | None = None) -> int:
         f"| re-solve saving per member | {1 - warm_member / cold_member:.0%} of the member time "
         f"({cold_member / warm_member:.1f} x faster); objectives agree to {gap:.1e} (relative) |",
         "",
-        "Inside-worker overhead by stage (mean per member): " + ", ".join(f"{k[:-2]} {v:.3f} s" for k, v in parts.items())
+        "Inside-worker overhead by stage (mean per member): "
+        + ", ".join(f"{k[:-2]} {v:.3f} s" for k, v in parts.items())
         + " (handoff = copying the member's costs and bounds into the base model, or the full Pyomo hand-off when the"
         " matrix differs).",
         "",
-        "Per member (1-worker run): " + "; ".join(
+        "Per member (1-worker run): "
+        + "; ".join(
             f"{r['times']['solve_s']:.1f} s HiGHS + {r['times']['member_s'] - r['times']['solve_s']:.2f} s other"
-            for r in records) + ".",
+            for r in records
+        )
+        + ".",
         "",
         "The throughput runs start each member from the stored base basis, so they exclude the one base solve an "
         "ensemble makes first; for an ensemble of M members the wall time is about base + M / rate.",

@@ -37,7 +37,9 @@ def main() -> None:
     model = build_linear_program(prepare_inputs(load_scenario(path).scenario))
     handles = to_pyomo(model.lp)
     ways = {
-        "VarData column_order + row_order": dict(column_order=handles.variables, row_order=handles.constraints),
+        "VarData column_order + row_order": dict(
+            column_order=handles.variables, row_order=handles.constraints
+        ),
         "Var components as column_order": dict(column_order=handles.var_components),
         "no order arguments": {},
     }

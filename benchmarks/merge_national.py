@@ -24,16 +24,30 @@ __all__ = ["merge"]
 def merge(first: dict, second: dict, baseline: dict) -> dict:
     r1, r2 = first["rows"][0], second["rows"][0]
     row = dict(r2)
-    for key in ("defaults_solve_s", "defaults_status", "defaults_solve_cpu_s", "defaults_objective_rel_diff",
-                "defaults_duals", "speedup_is_lower_bound"):
+    for key in (
+        "defaults_solve_s",
+        "defaults_status",
+        "defaults_solve_cpu_s",
+        "defaults_objective_rel_diff",
+        "defaults_duals",
+        "speedup_is_lower_bound",
+    ):
         row[key] = r1[key]
     row["speedup_vs_defaults"] = r1["defaults_solve_s"] / r1["bare_solve_s"]
     row["speedup_vs_defaults_cpu"] = r1["defaults_solve_cpu_s"] / r1["bare_solve_cpu_s"]
     row["speedup_reference_bare_solve_s"] = r1["bare_solve_s"]
-    row.update(_baseline_fields([baseline], {"rows": baseline["rows"]}, r1["bare_solve_s"], r1["bare_solve_cpu_s"],
-                                r1["bare_objective"]))
-    row["first_pair"] = {k: r1[k] for k in ("pathcast_total_s", "bare_total_s", "ratio", "pathcast_cpu_s",
-                                            "bare_solve_cpu_s")}
+    row.update(
+        _baseline_fields(
+            [baseline],
+            {"rows": baseline["rows"]},
+            r1["bare_solve_s"],
+            r1["bare_solve_cpu_s"],
+            r1["bare_objective"],
+        )
+    )
+    row["first_pair"] = {
+        k: r1[k] for k in ("pathcast_total_s", "bare_total_s", "ratio", "pathcast_cpu_s", "bare_solve_cpu_s")
+    }
     return {"cores": second["cores"], "versions": second["versions"], "rows": [row]}
 
 

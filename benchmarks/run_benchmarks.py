@@ -62,9 +62,12 @@ def _lp_ranges(lp) -> dict:
         a = a[np.isfinite(a) & (a > 0)]
         return [float(a.min()), float(a.max())] if len(a) else [0.0, 0.0]
 
-    return {"matrix": span(lp.a_matrix_.value_), "cost": span(lp.col_cost_),
-            "bound": span(np.concatenate([np.asarray(lp.col_lower_), np.asarray(lp.col_upper_)])),
-            "rhs": span(np.concatenate([np.asarray(lp.row_lower_), np.asarray(lp.row_upper_)]))}
+    return {
+        "matrix": span(lp.a_matrix_.value_),
+        "cost": span(lp.col_cost_),
+        "bound": span(np.concatenate([np.asarray(lp.col_lower_), np.asarray(lp.col_upper_)])),
+        "rhs": span(np.concatenate([np.asarray(lp.row_lower_), np.asarray(lp.row_upper_)])),
+    }
 
 
 def worker_pathcast(args: argparse.Namespace) -> dict:
@@ -80,9 +83,21 @@ def worker_pathcast(args: argparse.Namespace) -> dict:
     wall, cpu = time.perf_counter() - started, time.process_time() - cpu_started
     peak = _peak_rss_mb()
     sol = run.solution
-    out = {"kind": "pathcast", "times": run.times.as_dict(), "wall_s": wall, "cpu_s": cpu, "peak_rss_mb": peak,
-           "rows": sol.rows, "columns": sol.columns, "nonzeros": sol.nonzeros, "objective": sol.objective,
-           "status": sol.status, "method": sol.method, "options": sol.options, "iterations": sol.iterations}
+    out = {
+        "kind": "pathcast",
+        "times": run.times.as_dict(),
+        "wall_s": wall,
+        "cpu_s": cpu,
+        "peak_rss_mb": peak,
+        "rows": sol.rows,
+        "columns": sol.columns,
+        "nonzeros": sol.nonzeros,
+        "objective": sol.objective,
+        "status": sol.status,
+        "method": sol.method,
+        "options": sol.options,
+        "iterations": sol.iterations,
+    }
     offsets = run.model.lp.row_offsets()
     blocks = run.model.lp.row_blocks
     if "carbon_budget" in blocks:
@@ -102,10 +117,14 @@ def worker_pathcast(args: argparse.Namespace) -> dict:
         inverse[sol.row_map] = np.arange(len(sol.row_map))
         budget = [int(offsets["carbon_budget"])] if "carbon_budget" in blocks else []
         balance = (offsets["electricity_balance"] + np.arange(blocks["electricity_balance"].size)).tolist()
-        checked = {"carbon_budget": [int(inverse[i]) for i in budget],
-                   "electricity_balance": [int(inverse[i]) for i in balance],
-                   "reference_duals": {"carbon_budget": [float(sol.row_dual[i]) for i in budget],
-                                       "electricity_balance": [float(sol.row_dual[i]) for i in balance]}}
+        checked = {
+            "carbon_budget": [int(inverse[i]) for i in budget],
+            "electricity_balance": [int(inverse[i]) for i in balance],
+            "reference_duals": {
+                "carbon_budget": [float(sol.row_dual[i]) for i in budget],
+                "electricity_balance": [float(sol.row_dual[i]) for i in balance],
+            },
+        }
         Path(str(args.write_mps) + ".rows.json").write_text(json.dumps(checked))
     return out
 
@@ -132,8 +151,10 @@ def prepare_mps(args: argparse.Namespace) -> dict:
     offsets, blocks = model.lp.row_offsets(), model.lp.row_blocks
     budget = [int(offsets["carbon_budget"])] if "carbon_budget" in blocks else []
     balance = (offsets["electricity_balance"] + np.arange(blocks["electricity_balance"].size)).tolist()
-    checked = {"carbon_budget": [int(inverse[i]) for i in budget],
-               "electricity_balance": [int(inverse[i]) for i in balance]}
+    checked = {
+        "carbon_budget": [int(inverse[i]) for i in budget],
+        "electricity_balance": [int(inverse[i]) for i in balance],
+    }
     Path(str(args.write_mps) + ".rows.json").write_text(json.dumps(checked))
     return {"kind": "prepare", "rows": int(lp.num_row_), "ranges": _lp_ranges(lp)}
 
@@ -177,18 +198,38 @@ def worker_build(args: argparse.Namespace) -> dict:
         h.setOptionValue(key, value)
     h.passModel(lp)
     lap("handoff_s")
-    solution = Solution(status="optimal", objective=0.0, x=np.zeros(matrix.shape[1]), row_dual=np.zeros(matrix.shape[0]),
-                        method="auto", options=options, handoff_s=0.0, solve_s=0.0, rows=lp.num_row_,
-                        columns=lp.num_col_, nonzeros=len(lp.a_matrix_.value_), iterations={}, highs=h,
-                        row_map=row_map, col_map=col_map)
+    solution = Solution(
+        status="optimal",
+        objective=0.0,
+        x=np.zeros(matrix.shape[1]),
+        row_dual=np.zeros(matrix.shape[0]),
+        method="auto",
+        options=options,
+        handoff_s=0.0,
+        solve_s=0.0,
+        rows=lp.num_row_,
+        columns=lp.num_col_,
+        nonzeros=len(lp.a_matrix_.value_),
+        iterations={},
+        highs=h,
+        row_map=row_map,
+        col_map=col_map,
+    )
     tables = extract_tables(model, solution)
     headline_figures(model, solution, tables)
     lap("extract_s")
     peak = _peak_rss_mb()
     if args.write_mps:
         h.writeModel(str(args.write_mps))
-    return {"kind": "build", "times": t, "cpu_times": cpu, "peak_rss_mb": peak, "rows": int(lp.num_row_), "columns": int(lp.num_col_),
-            "nonzeros": len(lp.a_matrix_.value_)}
+    return {
+        "kind": "build",
+        "times": t,
+        "cpu_times": cpu,
+        "peak_rss_mb": peak,
+        "rows": int(lp.num_row_),
+        "columns": int(lp.num_col_),
+        "nonzeros": len(lp.a_matrix_.value_),
+    }
 
 
 def worker_read(args: argparse.Namespace) -> dict:
@@ -221,18 +262,30 @@ def measure_build(sizes: list[str], args: argparse.Namespace) -> list[dict]:
         overhead = times["build_lp_s"] + times["build_pyomo_s"] + times["handoff_s"] + times["extract_s"]
         cpu = {k: _median([b["cpu_times"][k] for b in builds]) for k in builds[0]["cpu_times"]}
         cpu_overhead = cpu["build_lp_s"] + cpu["build_pyomo_s"] + cpu["handoff_s"] + cpu["extract_s"]
-        row = {"size": size, "formulation": "per_generator" if args.per_generator else "pooled",
-               "rows": builds[0]["rows"], "columns": builds[0]["columns"], "cpu_times": cpu,
-               "cpu_overhead_us_per_row": cpu_overhead * 1e6 / builds[0]["rows"],
-               "nonzeros": builds[0]["nonzeros"], "runs": len(builds), "times": times, "overhead_s": overhead,
-               "overhead_us_per_row": overhead * 1e6 / builds[0]["rows"],
-               "peak_rss_mb": _median([b["peak_rss_mb"] for b in builds]),
-               "bare_read_s": _median([x["read_s"] for x in reads]),
-               "bare_read_peak_rss_mb": _median([x["peak_rss_mb"] for x in reads])}
+        row = {
+            "size": size,
+            "formulation": "per_generator" if args.per_generator else "pooled",
+            "rows": builds[0]["rows"],
+            "columns": builds[0]["columns"],
+            "cpu_times": cpu,
+            "cpu_overhead_us_per_row": cpu_overhead * 1e6 / builds[0]["rows"],
+            "nonzeros": builds[0]["nonzeros"],
+            "runs": len(builds),
+            "times": times,
+            "overhead_s": overhead,
+            "overhead_us_per_row": overhead * 1e6 / builds[0]["rows"],
+            "peak_rss_mb": _median([b["peak_rss_mb"] for b in builds]),
+            "bare_read_s": _median([x["read_s"] for x in reads]),
+            "bare_read_peak_rss_mb": _median([x["peak_rss_mb"] for x in reads]),
+        }
         rows.append(row)
-        print(f"[{time.strftime('%H:%M:%S')}] build {size}: {row['rows']:,} rows, overhead {overhead:.2f} s = "
-              f"{row['overhead_us_per_row']:.1f} us/row, peak {row['peak_rss_mb']:.0f} MB (bare read "
-              f"{row['bare_read_peak_rss_mb']:.0f} MB)", file=sys.stderr, flush=True)
+        print(
+            f"[{time.strftime('%H:%M:%S')}] build {size}: {row['rows']:,} rows, overhead {overhead:.2f} s = "
+            f"{row['overhead_us_per_row']:.1f} us/row, peak {row['peak_rss_mb']:.0f} MB (bare read "
+            f"{row['bare_read_peak_rss_mb']:.0f} MB)",
+            file=sys.stderr,
+            flush=True,
+        )
     return rows
 
 
@@ -261,14 +314,26 @@ def worker_bare(args: argparse.Namespace) -> dict:
     info = h.getInfo()
     status = h.modelStatusToString(h.getModelStatus())
     lp = h.getLp()
-    out = {"kind": "bare", "options": options, "read_s": read_s, "solve_s": solve_s, "solve_cpu_s": solve_cpu_s,
-           "peak_rss_mb": peak,
-           "status": status, "objective": float(info.objective_function_value),
-           "rows": int(lp.num_row_), "columns": int(lp.num_col_), "nonzeros": len(lp.a_matrix_.value_),
-           "iterations": {"simplex": int(info.simplex_iteration_count), "ipm": int(info.ipm_iteration_count),
-                          "crossover": int(info.crossover_iteration_count)},
-           "max_primal_infeasibility": float(info.max_primal_infeasibility),
-           "max_dual_infeasibility": float(info.max_dual_infeasibility)}
+    out = {
+        "kind": "bare",
+        "options": options,
+        "read_s": read_s,
+        "solve_s": solve_s,
+        "solve_cpu_s": solve_cpu_s,
+        "peak_rss_mb": peak,
+        "status": status,
+        "objective": float(info.objective_function_value),
+        "rows": int(lp.num_row_),
+        "columns": int(lp.num_col_),
+        "nonzeros": len(lp.a_matrix_.value_),
+        "iterations": {
+            "simplex": int(info.simplex_iteration_count),
+            "ipm": int(info.ipm_iteration_count),
+            "crossover": int(info.crossover_iteration_count),
+        },
+        "max_primal_infeasibility": float(info.max_primal_infeasibility),
+        "max_dual_infeasibility": float(info.max_dual_infeasibility),
+    }
     rows_file = Path(str(args.mps) + ".rows.json")
     if rows_file.exists() and len(np.asarray(h.getSolution().row_dual)) == out["rows"]:
         checked = json.loads(rows_file.read_text())
@@ -289,8 +354,11 @@ def worker_bare(args: argparse.Namespace) -> dict:
             scale = max(float(np.abs(ref_balance).max()), 1e-12)
             out["carbon_dual"] = budget.tolist()
             out["carbon_dual_reference"] = ref_budget.tolist()
-            out["carbon_dual_rel_diff"] = (float(abs(budget[0] - ref_budget[0]) / max(abs(ref_budget[0]), 1e-12))
-                                           if len(budget) else None)
+            out["carbon_dual_rel_diff"] = (
+                float(abs(budget[0] - ref_budget[0]) / max(abs(ref_budget[0]), 1e-12))
+                if len(budget)
+                else None
+            )
             # hourly prices: largest difference relative to the largest price, and the share of hours that differ
             # by more than 1 % of it (a vertex can have other, equally valid duals where the LP is degenerate)
             diff = np.abs(balance - ref_balance) / scale
@@ -340,22 +408,32 @@ def _per_generator_case(size: str, args: argparse.Namespace) -> tuple[Path, dict
     """MPS file of the per-generator formulation of ``size`` (the LP before pooling), written through pathcast."""
     per_args = argparse.Namespace(**{**vars(args), "per_generator": True})
     scenario, mps, _ = _case_paths(size, per_args)
-    prep = _run_worker(["--worker", "pathcast", "--prepare-only", "--scenario", str(scenario), "--write-mps", str(mps)])
+    prep = _run_worker(
+        ["--worker", "pathcast", "--prepare-only", "--scenario", str(scenario), "--write-mps", str(mps)]
+    )
     return mps, prep
 
 
-def _baseline_fields(runs: list[dict], prep: dict, bare_solve_s: float, bare_solve_cpu_s: float | None,
-                     bare_objective: float) -> dict:
+def _baseline_fields(
+    runs: list[dict], prep: dict, bare_solve_s: float, bare_solve_cpu_s: float | None, bare_objective: float
+) -> dict:
     """Row fields of HiGHS defaults on the per-generator LP, against pathcast's options on pathcast's LP."""
     solve = _median([r["solve_s"] for r in runs])
     cpu = _median([r["solve_cpu_s"] for r in runs]) if all("solve_cpu_s" in r for r in runs) else None
-    return {"baseline_rows": prep["rows"], "baseline_columns": runs[0]["columns"], "baseline_nonzeros": runs[0]["nonzeros"],
-            "baseline_defaults_solve_s": solve, "baseline_defaults_solve_cpu_s": cpu,
-            "baseline_defaults_status": runs[0]["status"], "baseline_objective": runs[0]["objective"],
-            "speedup_vs_baseline": solve / bare_solve_s,
-            "speedup_vs_baseline_cpu": cpu / bare_solve_cpu_s if cpu and bare_solve_cpu_s else None,
-            "baseline_is_lower_bound": runs[0]["status"] != "Optimal",
-            "baseline_objective_rel_diff": abs(runs[0]["objective"] - bare_objective) / max(abs(bare_objective), 1e-12)}
+    return {
+        "baseline_rows": prep["rows"],
+        "baseline_columns": runs[0]["columns"],
+        "baseline_nonzeros": runs[0]["nonzeros"],
+        "baseline_defaults_solve_s": solve,
+        "baseline_defaults_solve_cpu_s": cpu,
+        "baseline_defaults_status": runs[0]["status"],
+        "baseline_objective": runs[0]["objective"],
+        "speedup_vs_baseline": solve / bare_solve_s,
+        "speedup_vs_baseline_cpu": cpu / bare_solve_cpu_s if cpu and bare_solve_cpu_s else None,
+        "baseline_is_lower_bound": runs[0]["status"] != "Optimal",
+        "baseline_objective_rel_diff": abs(runs[0]["objective"] - bare_objective)
+        / max(abs(bare_objective), 1e-12),
+    }
 
 
 def measure_size(size: str, args: argparse.Namespace) -> dict:
@@ -367,32 +445,91 @@ def measure_size(size: str, args: argparse.Namespace) -> dict:
         print(f"[{time.strftime('%H:%M:%S')}] {size}: {message}", file=sys.stderr, flush=True)
 
     pathcast_runs, bare_runs, default_runs, baseline_runs = [], [], [], []
-    baseline_mps, baseline_prep = _per_generator_case(size, args) if args.against_per_generator else (None, None)
-    first = _run_worker(["--worker", "pathcast", "--scenario", str(scenario), "--method", method,
-                         "--write-mps", str(mps), *common])
+    baseline_mps, baseline_prep = (
+        _per_generator_case(size, args) if args.against_per_generator else (None, None)
+    )
+    first = _run_worker(
+        [
+            "--worker",
+            "pathcast",
+            "--scenario",
+            str(scenario),
+            "--method",
+            method,
+            "--write-mps",
+            str(mps),
+            *common,
+        ]
+    )
     pathcast_runs.append(first)
-    say(f"pathcast {first['times']['total_s']:.1f} s ({first['rows']:,} rows), solve {first['times']['solve_s']:.1f} s")
+    say(
+        f"pathcast {first['times']['total_s']:.1f} s ({first['rows']:,} rows), solve {first['times']['solve_s']:.1f} s"
+    )
     chosen = json.dumps({k: v for k, v in first["options"].items() if k != "time_limit"})
     long_case = first["times"]["total_s"] > args.long_run_s
     repeats = 1 if long_case else args.repeats
     with_defaults = not args.no_defaults
     for r in range(repeats):
         if r > 0:
-            pathcast_runs.append(_run_worker(["--worker", "pathcast", "--scenario", str(scenario), "--method", method,
-                                              *common]))
-        bare_runs.append(_run_worker(["--worker", "bare", "--mps", str(mps), "--options", chosen, "--check-duals",
-                                      "--log-file", str(logs / f"{scenario.stem}.chosen.{r}.log"), *common]))
+            pathcast_runs.append(
+                _run_worker(
+                    ["--worker", "pathcast", "--scenario", str(scenario), "--method", method, *common]
+                )
+            )
+        bare_runs.append(
+            _run_worker(
+                [
+                    "--worker",
+                    "bare",
+                    "--mps",
+                    str(mps),
+                    "--options",
+                    chosen,
+                    "--check-duals",
+                    "--log-file",
+                    str(logs / f"{scenario.stem}.chosen.{r}.log"),
+                    *common,
+                ]
+            )
+        )
         if with_defaults:
-            default_runs.append(_run_worker(["--worker", "bare", "--mps", str(mps), "--options", "{}", "--check-duals",
-                                             "--log-file", str(logs / f"{scenario.stem}.defaults.{r}.log"),
-                                             *_defaults_limit(args)]))
+            default_runs.append(
+                _run_worker(
+                    [
+                        "--worker",
+                        "bare",
+                        "--mps",
+                        str(mps),
+                        "--options",
+                        "{}",
+                        "--check-duals",
+                        "--log-file",
+                        str(logs / f"{scenario.stem}.defaults.{r}.log"),
+                        *_defaults_limit(args),
+                    ]
+                )
+            )
         if baseline_mps is not None:
-            baseline_runs.append(_run_worker(["--worker", "bare", "--mps", str(baseline_mps), "--options", "{}",
-                                              "--log-file", str(logs / f"{scenario.stem}.per_generator.defaults.{r}.log"),
-                                              *_defaults_limit(args)]))
-        say(f"repeat {r + 1}/{repeats}: pathcast {pathcast_runs[-1]['times']['total_s']:.1f} s, bare "
+            baseline_runs.append(
+                _run_worker(
+                    [
+                        "--worker",
+                        "bare",
+                        "--mps",
+                        str(baseline_mps),
+                        "--options",
+                        "{}",
+                        "--log-file",
+                        str(logs / f"{scenario.stem}.per_generator.defaults.{r}.log"),
+                        *_defaults_limit(args),
+                    ]
+                )
+            )
+        say(
+            f"repeat {r + 1}/{repeats}: pathcast {pathcast_runs[-1]['times']['total_s']:.1f} s, bare "
             f"{bare_runs[-1]['read_s'] + bare_runs[-1]['solve_s']:.1f} s"
-            + (f", defaults solve {default_runs[-1]['solve_s']:.1f} s" if with_defaults else ""))
+            + (f", defaults solve {default_runs[-1]['solve_s']:.1f} s" if with_defaults else "")
+        )
 
     methods = {}
     for name in [m for m in args.methods.split(",") if m] if args.methods else []:
@@ -401,8 +538,20 @@ def measure_size(size: str, args: argparse.Namespace) -> dict:
         opts = {} if name == "defaults" else highs_options_for(name, first["rows"])
         if args.threads:
             opts["threads"] = args.threads
-        result = _run_worker(["--worker", "bare", "--mps", str(mps), "--options", json.dumps(opts), "--check-duals",
-                              "--log-file", str(logs / f"{scenario.stem}.{name}.log"), *common])
+        result = _run_worker(
+            [
+                "--worker",
+                "bare",
+                "--mps",
+                str(mps),
+                "--options",
+                json.dumps(opts),
+                "--check-duals",
+                "--log-file",
+                str(logs / f"{scenario.stem}.{name}.log"),
+                *common,
+            ]
+        )
         methods[name] = result
         say(f"method {name}: {result['status']} in {result['solve_s']:.1f} s")
 
@@ -413,18 +562,32 @@ def measure_size(size: str, args: argparse.Namespace) -> dict:
     overhead = times["build_lp_s"] + times["build_pyomo_s"] + times["handoff_s"] + times["extract_s"]
     objective, bare_objective = first["objective"], bare_runs[0]["objective"]
     row = {
-        "size": size, "formulation": "per_generator" if args.per_generator else "pooled",
-        "rows": first["rows"], "columns": first["columns"], "nonzeros": first["nonzeros"],
-        "runs": len(pathcast_runs), "method": method, "options": json.loads(chosen), "times": times,
-        "pathcast_total_s": times["total_s"], "bare_read_s": bare_read, "bare_solve_s": bare_solve,
-        "bare_total_s": bare_total, "ratio": times["total_s"] / bare_total,
-        "overhead_s": overhead, "overhead_us_per_row": overhead * 1e6 / first["rows"],
+        "size": size,
+        "formulation": "per_generator" if args.per_generator else "pooled",
+        "rows": first["rows"],
+        "columns": first["columns"],
+        "nonzeros": first["nonzeros"],
+        "runs": len(pathcast_runs),
+        "method": method,
+        "options": json.loads(chosen),
+        "times": times,
+        "pathcast_total_s": times["total_s"],
+        "bare_read_s": bare_read,
+        "bare_solve_s": bare_solve,
+        "bare_total_s": bare_total,
+        "ratio": times["total_s"] / bare_total,
+        "overhead_s": overhead,
+        "overhead_us_per_row": overhead * 1e6 / first["rows"],
         "peak_rss_mb": _median([p["peak_rss_mb"] for p in pathcast_runs]),
         "bare_peak_rss_mb": _median([b["peak_rss_mb"] for b in bare_runs]),
-        "objective": objective, "bare_objective": bare_objective,
+        "objective": objective,
+        "bare_objective": bare_objective,
         "objective_rel_diff": abs(objective - bare_objective) / max(abs(bare_objective), 1e-12),
-        "ranges_lp": first.get("ranges"), "ranges_highs_log": _parse_ranges(logs / f"{scenario.stem}.chosen.0.log"),
-        "chosen_duals": {k: bare_runs[0].get(k) for k in ("dual_valid", "carbon_dual_rel_diff", "price_max_rel_diff")},
+        "ranges_lp": first.get("ranges"),
+        "ranges_highs_log": _parse_ranges(logs / f"{scenario.stem}.chosen.0.log"),
+        "chosen_duals": {
+            k: bare_runs[0].get(k) for k in ("dual_valid", "carbon_dual_rel_diff", "price_max_rel_diff")
+        },
         "methods": methods,
     }
     row["memory_ratio"] = row["peak_rss_mb"] / row["bare_peak_rss_mb"]
@@ -433,10 +596,19 @@ def measure_size(size: str, args: argparse.Namespace) -> dict:
         row["defaults_status"] = default_runs[0]["status"]
         row["speedup_vs_defaults"] = row["defaults_solve_s"] / bare_solve
         row["speedup_is_lower_bound"] = default_runs[0]["status"] != "Optimal"
-        row["defaults_objective_rel_diff"] = abs(default_runs[0]["objective"] - bare_objective) / max(abs(bare_objective), 1e-12)
+        row["defaults_objective_rel_diff"] = abs(default_runs[0]["objective"] - bare_objective) / max(
+            abs(bare_objective), 1e-12
+        )
     if baseline_runs:
-        row.update(_baseline_fields(baseline_runs, baseline_prep, bare_solve,
-                                    _median([b["solve_cpu_s"] for b in bare_runs]), bare_objective))
+        row.update(
+            _baseline_fields(
+                baseline_runs,
+                baseline_prep,
+                bare_solve,
+                _median([b["solve_cpu_s"] for b in bare_runs]),
+                bare_objective,
+            )
+        )
     return row
 
 
@@ -447,7 +619,8 @@ def _dual_diffs(result: dict, reference: dict) -> dict:
     out = {"dual_valid": result.get("dual_valid", True)}
     if result.get("carbon_dual") is not None and reference.get("carbon_dual") is not None:
         out["carbon_dual_rel_diff"] = abs(result["carbon_dual"] - reference["carbon_dual"]) / max(
-            abs(reference["carbon_dual"]), 1e-12)
+            abs(reference["carbon_dual"]), 1e-12
+        )
     if result.get("balance_duals") and reference.get("balance_duals"):
         a, b = np.asarray(result["balance_duals"]), np.asarray(reference["balance_duals"])
         out["price_max_rel_diff"] = float(np.abs(a - b).max() / max(float(np.abs(b).max()), 1e-12))
@@ -467,24 +640,51 @@ def measure_concurrent(size: str, args: argparse.Namespace) -> dict:
     from pathcast.solve import highs_options_for
 
     scenario, mps, logs = _case_paths(size, args)
-    prep = _run_worker(["--worker", "pathcast", "--prepare-only", "--scenario", str(scenario), "--write-mps", str(mps)])
+    prep = _run_worker(
+        ["--worker", "pathcast", "--prepare-only", "--scenario", str(scenario), "--write-mps", str(mps)]
+    )
     common = ["--time-limit", str(args.time_limit)] if args.time_limit else []
     chosen = highs_options_for(args.method, prep["rows"])
     cmds = {
         "pathcast": ["--worker", "pathcast", "--scenario", str(scenario), "--method", args.method, *common],
-        "bare": ["--worker", "bare", "--mps", str(mps), "--options", json.dumps(chosen),
-                 "--log-file", str(logs / f"{scenario.stem}.chosen.0.log"), *common],
-        "defaults": ["--worker", "bare", "--mps", str(mps), "--options", "{}",
-                     "--log-file", str(logs / f"{scenario.stem}.defaults.0.log"),
-                     *_defaults_limit(args)],
+        "bare": [
+            "--worker",
+            "bare",
+            "--mps",
+            str(mps),
+            "--options",
+            json.dumps(chosen),
+            "--log-file",
+            str(logs / f"{scenario.stem}.chosen.0.log"),
+            *common,
+        ],
+        "defaults": [
+            "--worker",
+            "bare",
+            "--mps",
+            str(mps),
+            "--options",
+            "{}",
+            "--log-file",
+            str(logs / f"{scenario.stem}.defaults.0.log"),
+            *_defaults_limit(args),
+        ],
     }
     if args.no_defaults:
         del cmds["defaults"]
     if args.against_per_generator:
         baseline_mps, baseline_prep = _per_generator_case(size, args)
-        cmds["baseline"] = ["--worker", "bare", "--mps", str(baseline_mps), "--options", "{}",
-                            "--log-file", str(logs / f"{scenario.stem}.per_generator.defaults.0.log"),
-                            *_defaults_limit(args)]
+        cmds["baseline"] = [
+            "--worker",
+            "bare",
+            "--mps",
+            str(baseline_mps),
+            "--options",
+            "{}",
+            "--log-file",
+            str(logs / f"{scenario.stem}.per_generator.defaults.0.log"),
+            *_defaults_limit(args),
+        ]
     # at most --at-most solves at a time, started in the order pathcast, defaults, bare: on 2 cores with
     # --at-most 2 each single-threaded solve has a core of its own, and the long defaults solve overlaps both others
     order = [k for k in ("pathcast", "defaults", "bare", "baseline") if k in cmds]
@@ -496,8 +696,9 @@ def measure_concurrent(size: str, args: argparse.Namespace) -> dict:
             # output to files, not pipes: a worker's JSON line (hourly duals) outgrows a pipe's buffer
             out_file, err_file = logs / f"{scenario.stem}.{k}.out", logs / f"{scenario.stem}.{k}.err"
             with out_file.open("w") as out, err_file.open("w") as err:  # the child keeps its own copies
-                running[k] = subprocess.Popen([sys.executable, str(Path(__file__).resolve()), *cmds[k]],
-                                              stdout=out, stderr=err)
+                running[k] = subprocess.Popen(
+                    [sys.executable, str(Path(__file__).resolve()), *cmds[k]], stdout=out, stderr=err
+                )
             print(f"[{time.strftime('%H:%M:%S')}] {size}: {k} started", file=sys.stderr, flush=True)
         finished = [k for k, p in running.items() if p.poll() is not None]
         if not finished:
@@ -516,35 +717,66 @@ def measure_concurrent(size: str, args: argparse.Namespace) -> dict:
     times = first["times"]
     overhead = times["build_lp_s"] + times["build_pyomo_s"] + times["handoff_s"] + times["extract_s"]
     row = {
-        "size": size, "formulation": "per_generator" if args.per_generator else "pooled",
-        "rows": first["rows"], "columns": first["columns"], "nonzeros": first["nonzeros"],
-        "runs": 1, "concurrent": True, "at_most": args.at_most, "method": args.method,
-        "options": chosen, "times": times, "pathcast_cpu_s": first.get("cpu_s"),
+        "size": size,
+        "formulation": "per_generator" if args.per_generator else "pooled",
+        "rows": first["rows"],
+        "columns": first["columns"],
+        "nonzeros": first["nonzeros"],
+        "runs": 1,
+        "concurrent": True,
+        "at_most": args.at_most,
+        "method": args.method,
+        "options": chosen,
+        "times": times,
+        "pathcast_cpu_s": first.get("cpu_s"),
         "bare_solve_cpu_s": bare.get("solve_cpu_s"),
-        "pathcast_total_s": times["total_s"], "bare_read_s": bare["read_s"], "bare_solve_s": bare["solve_s"],
-        "bare_total_s": bare["read_s"] + bare["solve_s"], "ratio": times["total_s"] / (bare["read_s"] + bare["solve_s"]),
-        "overhead_s": overhead, "overhead_us_per_row": overhead * 1e6 / first["rows"],
-        "peak_rss_mb": first["peak_rss_mb"], "bare_peak_rss_mb": bare["peak_rss_mb"],
-        "objective": first["objective"], "bare_objective": bare["objective"],
-        "objective_rel_diff": abs(first["objective"] - bare["objective"]) / max(abs(bare["objective"]), 1e-12),
-        "ranges_lp": prep["ranges"], "ranges_highs_log": _parse_ranges(logs / f"{scenario.stem}.chosen.0.log"),
-        "chosen_duals": _dual_diffs(bare, first), "methods": {},
+        "pathcast_total_s": times["total_s"],
+        "bare_read_s": bare["read_s"],
+        "bare_solve_s": bare["solve_s"],
+        "bare_total_s": bare["read_s"] + bare["solve_s"],
+        "ratio": times["total_s"] / (bare["read_s"] + bare["solve_s"]),
+        "overhead_s": overhead,
+        "overhead_us_per_row": overhead * 1e6 / first["rows"],
+        "peak_rss_mb": first["peak_rss_mb"],
+        "bare_peak_rss_mb": bare["peak_rss_mb"],
+        "objective": first["objective"],
+        "bare_objective": bare["objective"],
+        "objective_rel_diff": abs(first["objective"] - bare["objective"])
+        / max(abs(bare["objective"]), 1e-12),
+        "ranges_lp": prep["ranges"],
+        "ranges_highs_log": _parse_ranges(logs / f"{scenario.stem}.chosen.0.log"),
+        "chosen_duals": _dual_diffs(bare, first),
+        "methods": {},
     }
     if dflt is not None:
-        row.update({
-            "defaults_solve_s": dflt["solve_s"], "defaults_status": dflt["status"],
-            "speedup_vs_defaults": dflt["solve_s"] / bare["solve_s"],
-            "defaults_solve_cpu_s": dflt.get("solve_cpu_s"),
-            "speedup_vs_defaults_cpu": (dflt["solve_cpu_s"] / bare["solve_cpu_s"]
-                                        if dflt.get("solve_cpu_s") and bare.get("solve_cpu_s") else None),
-            # a defaults solve stopped by its time limit gives a lower bound on the speed-up
-            "speedup_is_lower_bound": dflt["status"] != "Optimal",
-            "defaults_objective_rel_diff": abs(dflt["objective"] - bare["objective"]) / max(abs(bare["objective"]), 1e-12),
-            "defaults_duals": _dual_diffs(dflt, first),
-        })
+        row.update(
+            {
+                "defaults_solve_s": dflt["solve_s"],
+                "defaults_status": dflt["status"],
+                "speedup_vs_defaults": dflt["solve_s"] / bare["solve_s"],
+                "defaults_solve_cpu_s": dflt.get("solve_cpu_s"),
+                "speedup_vs_defaults_cpu": (
+                    dflt["solve_cpu_s"] / bare["solve_cpu_s"]
+                    if dflt.get("solve_cpu_s") and bare.get("solve_cpu_s")
+                    else None
+                ),
+                # a defaults solve stopped by its time limit gives a lower bound on the speed-up
+                "speedup_is_lower_bound": dflt["status"] != "Optimal",
+                "defaults_objective_rel_diff": abs(dflt["objective"] - bare["objective"])
+                / max(abs(bare["objective"]), 1e-12),
+                "defaults_duals": _dual_diffs(dflt, first),
+            }
+        )
     if "baseline" in results:
-        row.update(_baseline_fields([results["baseline"]], baseline_prep, bare["solve_s"], bare.get("solve_cpu_s"),
-                                    bare["objective"]))
+        row.update(
+            _baseline_fields(
+                [results["baseline"]],
+                baseline_prep,
+                bare["solve_s"],
+                bare.get("solve_cpu_s"),
+                bare["objective"],
+            )
+        )
     row["memory_ratio"] = row["peak_rss_mb"] / row["bare_peak_rss_mb"]
     return row
 
@@ -554,8 +786,14 @@ def build_exponent(rows: list[dict]) -> dict | None:
     import numpy as np
 
     techs = max(int(r["size"].split("x")[2]) for r in rows)
-    pts = [(int(r["size"].split("x")[0]) * int(r["size"].split("x")[1]),
-            r["times"]["build_lp_s"] + r["times"]["build_pyomo_s"]) for r in rows if int(r["size"].split("x")[2]) == techs]
+    pts = [
+        (
+            int(r["size"].split("x")[0]) * int(r["size"].split("x")[1]),
+            r["times"]["build_lp_s"] + r["times"]["build_pyomo_s"],
+        )
+        for r in rows
+        if int(r["size"].split("x")[2]) == techs
+    ]
     if len(pts) < 2:
         return None
     x, y = np.log([p[0] for p in pts]), np.log([p[1] for p in pts])
@@ -564,36 +802,81 @@ def build_exponent(rows: list[dict]) -> dict | None:
 
 
 def main(argv: list[str] | None = None) -> int:
-    parser = argparse.ArgumentParser(description=__doc__.split("\n\n")[0],
-                                     formatter_class=argparse.RawDescriptionHelpFormatter)
-    parser.add_argument("--sizes", default=DEFAULT_SIZES,
-                        help=f"comma-separated YEARSxHOURSxTECHNOLOGIES (default {DEFAULT_SIZES})")
-    parser.add_argument("--repeats", type=int, default=3, help="runs per case; the median is reported (default 3)")
-    parser.add_argument("--long-run-s", type=float, default=60.0, help="a case slower than this runs once (default 60)")
+    parser = argparse.ArgumentParser(
+        description=__doc__.split("\n\n")[0], formatter_class=argparse.RawDescriptionHelpFormatter
+    )
+    parser.add_argument(
+        "--sizes",
+        default=DEFAULT_SIZES,
+        help=f"comma-separated YEARSxHOURSxTECHNOLOGIES (default {DEFAULT_SIZES})",
+    )
+    parser.add_argument(
+        "--repeats", type=int, default=3, help="runs per case; the median is reported (default 3)"
+    )
+    parser.add_argument(
+        "--long-run-s", type=float, default=60.0, help="a case slower than this runs once (default 60)"
+    )
     parser.add_argument("--method", default="auto", help="pathcast solver method (default auto)")
-    parser.add_argument("--methods", default="", help="also solve the MPS with each of these methods "
-                        "(simplex, ipm, ipm-crossover, pdlp, defaults), comma-separated")
+    parser.add_argument(
+        "--methods",
+        default="",
+        help="also solve the MPS with each of these methods "
+        "(simplex, ipm, ipm-crossover, pdlp, defaults), comma-separated",
+    )
     parser.add_argument("--threads", type=int, default=None, help="HiGHS threads for --methods runs")
     parser.add_argument("--time-limit", type=float, default=None, help="HiGHS time limit per solve [s]")
     parser.add_argument("--no-defaults", action="store_true", help="skip the HiGHS-defaults comparison")
-    parser.add_argument("--concurrent", action="store_true", help="one run each, pathcast, bare and defaults started "
-                        "together (for sizes whose solves take many minutes)")
-    parser.add_argument("--at-most", type=int, default=None, help="with --concurrent: run at most this many of the "
-                        "solves at a time, started in the order pathcast, defaults, bare (2 on a 2-core machine)")
-    parser.add_argument("--defaults-time-limit", type=float, default=None, help="time limit of the defaults solve "
-                        "[s]; one that stops there gives a lower bound on the speed-up")
-    parser.add_argument("--per-generator", action="store_true", help="build the LP with one output variable and "
-                        "limit row per generator (solver.pooled_curtailment: false), the formulation before pooling")
-    parser.add_argument("--against-per-generator", action="store_true", help="also solve the per-generator "
-                        "formulation with HiGHS defaults: the speed-up of pathcast's whole strategy (formulation + "
-                        "options) over the LP a plain formulation gives")
-    parser.add_argument("--out", default=str(HERE / "out"), help="folder for scenarios, MPS files, logs and JSON")
-    parser.add_argument("--json", default=None, help="file for the result rows (default <out>/results-<time>.json)")
-    parser.add_argument("--report", nargs="+", metavar="JSON", default=None,
-                        help="write benchmarks/RESULTS.md from these result files (rows merged, later files win)")
+    parser.add_argument(
+        "--concurrent",
+        action="store_true",
+        help="one run each, pathcast, bare and defaults started "
+        "together (for sizes whose solves take many minutes)",
+    )
+    parser.add_argument(
+        "--at-most",
+        type=int,
+        default=None,
+        help="with --concurrent: run at most this many of the "
+        "solves at a time, started in the order pathcast, defaults, bare (2 on a 2-core machine)",
+    )
+    parser.add_argument(
+        "--defaults-time-limit",
+        type=float,
+        default=None,
+        help="time limit of the defaults solve [s]; one that stops there gives a lower bound on the speed-up",
+    )
+    parser.add_argument(
+        "--per-generator",
+        action="store_true",
+        help="build the LP with one output variable and "
+        "limit row per generator (solver.pooled_curtailment: false), the formulation before pooling",
+    )
+    parser.add_argument(
+        "--against-per-generator",
+        action="store_true",
+        help="also solve the per-generator "
+        "formulation with HiGHS defaults: the speed-up of pathcast's whole strategy (formulation + "
+        "options) over the LP a plain formulation gives",
+    )
+    parser.add_argument(
+        "--out", default=str(HERE / "out"), help="folder for scenarios, MPS files, logs and JSON"
+    )
+    parser.add_argument(
+        "--json", default=None, help="file for the result rows (default <out>/results-<time>.json)"
+    )
+    parser.add_argument(
+        "--report",
+        nargs="+",
+        metavar="JSON",
+        default=None,
+        help="write benchmarks/RESULTS.md from these result files (rows merged, later files win)",
+    )
     parser.add_argument("--demo", default=None, help="with --report: JSON of a demo run (see RESULTS.md)")
-    parser.add_argument("--build-only", action="store_true", help="stage times and memory without the solve "
-                        "(build-time growth with size; every size in minutes)")
+    parser.add_argument(
+        "--build-only",
+        action="store_true",
+        help="stage times and memory without the solve (build-time growth with size; every size in minutes)",
+    )
     parser.add_argument("--worker", choices=("pathcast", "bare", "build", "read"), help=argparse.SUPPRESS)
     parser.add_argument("--scenario", help=argparse.SUPPRESS)
     parser.add_argument("--write-mps", help=argparse.SUPPRESS)
@@ -614,23 +897,36 @@ def main(argv: list[str] | None = None) -> int:
     if args.report:
         from report_results import write_report
 
-        write_report([Path(p) for p in args.report], HERE / "RESULTS.md", Path(args.demo) if args.demo else None)
+        write_report(
+            [Path(p) for p in args.report], HERE / "RESULTS.md", Path(args.demo) if args.demo else None
+        )
         return 0
     if args.build_only:
         sizes = [s for s in args.sizes.split(",") if s]
-        out_json = Path(args.json) if args.json else Path(args.out) / f"build-{time.strftime('%Y%m%d-%H%M%S')}.json"
+        out_json = (
+            Path(args.json) if args.json else Path(args.out) / f"build-{time.strftime('%Y%m%d-%H%M%S')}.json"
+        )
         out_json.parent.mkdir(parents=True, exist_ok=True)
         rows = measure_build(sizes, args)
-        out_json.write_text(json.dumps({"cores": os.cpu_count(), "versions": package_versions(), "build_rows": rows},
-                                       indent=1))
+        out_json.write_text(
+            json.dumps(
+                {"cores": os.cpu_count(), "versions": package_versions(), "build_rows": rows}, indent=1
+            )
+        )
         return 0
     rows = []
-    out_json = Path(args.json) if args.json else Path(args.out) / f"results-{time.strftime('%Y%m%d-%H%M%S')}.json"
+    out_json = (
+        Path(args.json) if args.json else Path(args.out) / f"results-{time.strftime('%Y%m%d-%H%M%S')}.json"
+    )
     out_json.parent.mkdir(parents=True, exist_ok=True)
     for size in [s for s in args.sizes.split(",") if s]:
         rows.append(measure_concurrent(size, args) if args.concurrent else measure_size(size, args))
-        report = {"cores": os.cpu_count(), "versions": package_versions(), "rows": rows,
-                  "build_exponent": build_exponent(rows)}
+        report = {
+            "cores": os.cpu_count(),
+            "versions": package_versions(),
+            "rows": rows,
+            "build_exponent": build_exponent(rows),
+        }
         out_json.write_text(json.dumps(report, indent=1))
     print_table(rows, build_exponent(rows))
     print(f"results in {out_json}", file=sys.stderr)
@@ -638,17 +934,21 @@ def main(argv: list[str] | None = None) -> int:
 
 
 def print_table(rows: list[dict], exponent: dict | None) -> None:
-    head = (f"{'size':>11} {'rows':>8} {'cols':>8} {'nnz':>9} {'n':>2} {'load':>6} {'lp':>6} {'pyomo':>6} {'hand':>6} "
-            f"{'solve':>7} {'extr':>6} {'total':>7} {'bare':>7} {'ratio':>6} {'us/row':>6} {'mem':>5} {'dflt':>7} "
-            f"{'x dflt':>6} {'objdiff':>8}")
+    head = (
+        f"{'size':>11} {'rows':>8} {'cols':>8} {'nnz':>9} {'n':>2} {'load':>6} {'lp':>6} {'pyomo':>6} {'hand':>6} "
+        f"{'solve':>7} {'extr':>6} {'total':>7} {'bare':>7} {'ratio':>6} {'us/row':>6} {'mem':>5} {'dflt':>7} "
+        f"{'x dflt':>6} {'objdiff':>8}"
+    )
     print(head)
     for r in rows:
         t = r["times"]
-        print(f"{r['size']:>11} {r['rows']:>8,} {r['columns']:>8,} {r['nonzeros']:>9,} {r['runs']:>2} {t['load_s']:>6.2f} "
-              f"{t['build_lp_s']:>6.2f} {t['build_pyomo_s']:>6.2f} {t['handoff_s']:>6.2f} {t['solve_s']:>7.2f} "
-              f"{t['extract_s']:>6.2f} {t['total_s']:>7.2f} {r['bare_total_s']:>7.2f} {r['ratio']:>6.3f} "
-              f"{r['overhead_us_per_row']:>6.1f} {r['memory_ratio']:>5.2f} {r.get('defaults_solve_s', math.nan):>7.2f} "
-              f"{r.get('speedup_vs_defaults', math.nan):>6.2f} {r['objective_rel_diff']:>8.1e}")
+        print(
+            f"{r['size']:>11} {r['rows']:>8,} {r['columns']:>8,} {r['nonzeros']:>9,} {r['runs']:>2} {t['load_s']:>6.2f} "
+            f"{t['build_lp_s']:>6.2f} {t['build_pyomo_s']:>6.2f} {t['handoff_s']:>6.2f} {t['solve_s']:>7.2f} "
+            f"{t['extract_s']:>6.2f} {t['total_s']:>7.2f} {r['bare_total_s']:>7.2f} {r['ratio']:>6.3f} "
+            f"{r['overhead_us_per_row']:>6.1f} {r['memory_ratio']:>5.2f} {r.get('defaults_solve_s', math.nan):>7.2f} "
+            f"{r.get('speedup_vs_defaults', math.nan):>6.2f} {r['objective_rel_diff']:>8.1e}"
+        )
     if exponent:
         print(f"build time ~ (years x hours)^{exponent['exponent']:.2f} over {exponent['points']} sizes")
 

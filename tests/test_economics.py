@@ -21,7 +21,9 @@ def test_crf_matches_compound_interest_tables(rate, years, factor):
 @pytest.mark.parametrize("years", [1, 10, 25, 40])
 def test_crf_matches_numpy_financial_payment(rate, years):
     # independent reference: CRF = -pmt(i, n, 1) (numpy-financial, PyPI)
-    assert capital_recovery_factor(rate, years) == pytest.approx(-numpy_financial.pmt(rate, years, 1), rel=1e-12)
+    assert capital_recovery_factor(rate, years) == pytest.approx(
+        -numpy_financial.pmt(rate, years, 1), rel=1e-12
+    )
 
 
 def test_crf_zero_rate_is_straight_line():

@@ -17,4 +17,8 @@ def test_readme_states_job_quick_start_and_cautions():
     assert "screening-level planning model" in text and "licensed engineering studies" in text
     quick = text.split("## Quick start", 1)[1].split("##", 1)[0]
     commands = [line for line in quick.splitlines() if line.startswith("python3 -m venv")]
-    assert len(commands) == 2 and "pathcast run scenarios/demo/budget.yaml" in commands[0] and "pytest" in commands[1]
+    assert (
+        len(commands) == 2
+        and "pathcast run scenarios/demo/budget.yaml" in commands[0]
+        and "pytest" in commands[1]
+    )

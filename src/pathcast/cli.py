@@ -19,11 +19,20 @@ __all__ = ["main", "COMMANDS"]
 COMMANDS: dict[str, tuple[str, str]] = {
     "run": ("run", "solve a scenario and write its tables to results/<scenario>/"),
     "check": ("check", "validate a scenario file without solving"),
-    "ensemble": ("ensemble", "solve many variants of a scenario (sensitivity, uncertainty) and summarise them"),
+    "ensemble": (
+        "ensemble",
+        "solve many variants of a scenario (sensitivity, uncertainty) and summarise them",
+    ),
     "compare": ("compare", "compare scenarios side by side: comparison.csv and overlay charts"),
-    "memo": ("memo", "write a planning memo (memo.md and self-contained memo.html) of one or several scenarios"),
+    "memo": (
+        "memo",
+        "write a planning memo (memo.md and self-contained memo.html) of one or several scenarios",
+    ),
     "rates": ("rates", "required and realised CO2 reduction rates under the carbon budget"),
-    "delay": ("delay", "cost of delayed action: reference pathway until a start year, least-cost under the budget after"),
+    "delay": (
+        "delay",
+        "cost of delayed action: reference pathway until a start year, least-cost under the budget after",
+    ),
 }
 
 
@@ -33,8 +42,11 @@ class _Parser(argparse.ArgumentParser):
 
 
 def build_parser() -> argparse.ArgumentParser:
-    parser = _Parser(prog="pathcast", description="Least-cost decarbonisation pathways under a carbon budget "
-                     "(screening-level planning model).")
+    parser = _Parser(
+        prog="pathcast",
+        description="Least-cost decarbonisation pathways under a carbon budget "
+        "(screening-level planning model).",
+    )
     from . import __version__
 
     parser.add_argument("--version", action="version", version=f"pathcast {__version__}")

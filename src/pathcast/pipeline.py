@@ -40,7 +40,14 @@ class StageTimes:
 
     @property
     def total_s(self) -> float:
-        return self.load_s + self.build_lp_s + self.build_pyomo_s + self.handoff_s + self.solve_s + self.extract_s
+        return (
+            self.load_s
+            + self.build_lp_s
+            + self.build_pyomo_s
+            + self.handoff_s
+            + self.solve_s
+            + self.extract_s
+        )
 
     def as_dict(self) -> dict[str, float]:
         out = {k: round(v, 4) for k, v in self.__dict__.items()}
@@ -60,7 +67,17 @@ class Run:
 
 def package_versions() -> dict[str, str]:
     out = {"python": platform.python_version()}
-    for name in ("pathcast", "pyomo", "highspy", "numpy", "pandas", "scipy", "pydantic", "pint", "matplotlib"):
+    for name in (
+        "pathcast",
+        "pyomo",
+        "highspy",
+        "numpy",
+        "pandas",
+        "scipy",
+        "pydantic",
+        "pint",
+        "matplotlib",
+    ):
         try:
             out[name] = importlib_metadata.version(name)
         except importlib_metadata.PackageNotFoundError:
@@ -73,14 +90,26 @@ def solver_options_from(inputs: ModelInputs, override: dict | None = None) -> So
     for key, value in (override or {}).items():
         if value is not None:
             settings[key] = value
-    return SolverOptions(method=settings.get("method", "auto"), time_limit_s=settings.get("time_limit_s"),
-                         threads=settings.get("threads"), options=dict(settings.get("options") or {}),
-                         log=bool(settings.get("log", False)))
+    return SolverOptions(
+        method=settings.get("method", "auto"),
+        time_limit_s=settings.get("time_limit_s"),
+        threads=settings.get("threads"),
+        options=dict(settings.get("options") or {}),
+        log=bool(settings.get("log", False)),
+    )
 
 
-def solve_inputs(inputs: ModelInputs, *, solver: dict | None = None, progress: Progress | None = None,
-                 times: StageTimes | None = None, input_hash: str = "", source: str = "",
-                 metadata: dict | None = None, require_optimal: bool = True) -> Run:
+def solve_inputs(
+    inputs: ModelInputs,
+    *,
+    solver: dict | None = None,
+    progress: Progress | None = None,
+    times: StageTimes | None = None,
+    input_hash: str = "",
+    source: str = "",
+    metadata: dict | None = None,
+    require_optimal: bool = True,
+) -> Run:
     """Build and solve the model of ``inputs``; raise InfeasibleError or SolverError unless it solves to optimality."""
     say = progress or (lambda _message: None)
     times = times or StageTimes()
@@ -90,7 +119,9 @@ def solve_inputs(inputs: ModelInputs, *, solver: dict | None = None, progress: P
     matrix, _, _ = model.lp.matrix()
     times.build_lp_s = time.perf_counter() - started
     started = time.perf_counter()
-    say(f"building the Pyomo model ({matrix.shape[0]:,} rows, {matrix.shape[1]:,} columns, {matrix.nnz:,} nonzeros)")
+    say(
+        f"building the Pyomo model ({matrix.shape[0]:,} rows, {matrix.shape[1]:,} columns, {matrix.nnz:,} nonzeros)"
+    )
     handles = to_pyomo(model.lp)
     times.build_pyomo_s = time.perf_counter() - started
     options = solver_options_from(inputs, solver)
@@ -103,9 +134,12 @@ def solve_inputs(inputs: ModelInputs, *, solver: dict | None = None, progress: P
             raise InfeasibleError(
                 f"scenario {inputs.name!r}: HiGHS reports the model {solution.status.replace('_', ' ')}: the carbon "
                 "budget, caps, clean-electricity share, minimum builds and phase-outs cannot all be met together.",
-                diagnosis={"status": solution.status})
-        raise SolverError(f"scenario {inputs.name!r}: HiGHS stopped with status {solution.status!r} after "
-                          f"{solution.solve_s:.1f} s; try another solver method (--method) or a longer time limit.")
+                diagnosis={"status": solution.status},
+            )
+        raise SolverError(
+            f"scenario {inputs.name!r}: HiGHS stopped with status {solution.status!r} after "
+            f"{solution.solve_s:.1f} s; try another solver method (--method) or a longer time limit."
+        )
     started = time.perf_counter()
     say("reading results")
     tables = extract_tables(model, solution)
@@ -119,17 +153,30 @@ def solve_inputs(inputs: ModelInputs, *, solver: dict | None = None, progress: P
         "input_hash": input_hash,
         "versions": package_versions(),
         "solver": {
-            "name": "HiGHS", "status": solution.status, "method": solution.method, "options": solution.options,
-            "objective_million": solution.objective, "iterations": solution.iterations,
+            "name": "HiGHS",
+            "status": solution.status,
+            "method": solution.method,
+            "options": solution.options,
+            "objective_million": solution.objective,
+            "iterations": solution.iterations,
             "primal_infeasibility": float(info.max_primal_infeasibility) if info else None,
             "dual_infeasibility": float(info.max_dual_infeasibility) if info else None,
         },
-        "lp": {"rows": solution.rows, "columns": solution.columns, "nonzeros": solution.nonzeros,
-               "coefficient_range": coefficient_ranges(matrix)},
+        "lp": {
+            "rows": solution.rows,
+            "columns": solution.columns,
+            "nonzeros": solution.nonzeros,
+            "coefficient_range": coefficient_ranges(matrix),
+        },
         "stage_times_s": times.as_dict(),
     }
-    result = RunResult.create(inputs.name, tables, summary, manifest, metadata or {"currency": inputs.currency,
-                                                                                    "price_year": inputs.price_year})
+    result = RunResult.create(
+        inputs.name,
+        tables,
+        summary,
+        manifest,
+        metadata or {"currency": inputs.currency, "price_year": inputs.price_year},
+    )
     return Run(result=result, model=model, solution=solution, times=times)
 
 
@@ -141,8 +188,13 @@ def coefficient_ranges(matrix) -> dict[str, float]:
     return {"min": float(data.min()), "max": float(data.max())}
 
 
-def run_scenario(scenario: str | Path | LoadedScenario, *, solver: dict | None = None,
-                 progress: Progress | None = None, inputs_hook: Callable[[ModelInputs], ModelInputs] | None = None) -> Run:
+def run_scenario(
+    scenario: str | Path | LoadedScenario,
+    *,
+    solver: dict | None = None,
+    progress: Progress | None = None,
+    inputs_hook: Callable[[ModelInputs], ModelInputs] | None = None,
+) -> Run:
     """Load (unless given loaded), validate, build and solve one scenario."""
     say = progress or (lambda _message: None)
     times = StageTimes()
@@ -159,8 +211,15 @@ def run_scenario(scenario: str | Path | LoadedScenario, *, solver: dict | None =
     meta = loaded.scenario.metadata
     metadata = meta.model_dump()
     metadata["files"] = [str(p) for p in loaded.files]
-    return solve_inputs(inputs, solver=solver, progress=progress, times=times, input_hash=loaded.input_hash,
-                        source=str(loaded.path), metadata=metadata)
+    return solve_inputs(
+        inputs,
+        solver=solver,
+        progress=progress,
+        times=times,
+        input_hash=loaded.input_hash,
+        source=str(loaded.path),
+        metadata=metadata,
+    )
 
 
 def with_changes(inputs: ModelInputs, **changes) -> ModelInputs:

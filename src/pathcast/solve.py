@@ -85,21 +85,26 @@ def handoff(handles: PyomoHandles, n_rows: int, n_cols: int):
     declared, which is the LP's row order; both orders are checked object by object (identity), and only if they
     differ (a row or column dropped, e.g. an empty row) are the maps built by look-up."""
     with PauseGC():  # the compiler makes a few objects per row; no cyclic GC passes while it runs
-        compiled = LinearStandardFormCompiler().write(handles.model, mixed_form=True,
-                                                      column_order=handles.var_components or handles.variables)
+        compiled = LinearStandardFormCompiler().write(
+            handles.model, mixed_form=True, column_order=handles.var_components or handles.variables
+        )
         return _fill_highs_lp(handles, compiled)
 
 
 def _fill_highs_lp(handles: PyomoHandles, compiled):
     """The HighsLp of a compiled standard form, with the row and column maps (see handoff)."""
     columns = compiled.columns
-    if len(columns) == len(handles.variables) and all(a is b for a, b in zip(columns, handles.variables, strict=True)):
+    if len(columns) == len(handles.variables) and all(
+        a is b for a, b in zip(columns, handles.variables, strict=True)
+    ):
         col_map = np.arange(len(columns), dtype=np.int64)
     else:
         position = {id(v): i for i, v in enumerate(handles.variables)}
         col_map = np.fromiter((position[id(v)] for v in columns), dtype=np.int64, count=len(columns))
     row_cons = [c for c, _ in compiled.rows]
-    if len(row_cons) == len(handles.constraints) and all(a is b for a, b in zip(row_cons, handles.constraints, strict=True)):
+    if len(row_cons) == len(handles.constraints) and all(
+        a is b for a, b in zip(row_cons, handles.constraints, strict=True)
+    ):
         row_map = np.arange(len(row_cons), dtype=np.int64)
     else:
         row_position = {id(c): i for i, c in enumerate(handles.constraints)}
@@ -118,8 +123,12 @@ def _fill_highs_lp(handles: PyomoHandles, compiled):
     cost = np.asarray(compiled.c.todense()).ravel() if compiled.c.shape[0] else np.zeros(lp.num_col_)
     lp.col_cost_ = cost
     bounds = [v.bounds for v in columns]
-    lp.col_lower_ = np.fromiter((-math.inf if b[0] is None else b[0] for b in bounds), dtype=float, count=len(bounds))
-    lp.col_upper_ = np.fromiter((math.inf if b[1] is None else b[1] for b in bounds), dtype=float, count=len(bounds))
+    lp.col_lower_ = np.fromiter(
+        (-math.inf if b[0] is None else b[0] for b in bounds), dtype=float, count=len(bounds)
+    )
+    lp.col_upper_ = np.fromiter(
+        (math.inf if b[1] is None else b[1] for b in bounds), dtype=float, count=len(bounds)
+    )
     lp.row_lower_ = lower
     lp.row_upper_ = upper
     lp.a_matrix_.format_ = highspy.MatrixFormat.kColwise
@@ -130,8 +139,9 @@ def _fill_highs_lp(handles: PyomoHandles, compiled):
     return lp, col_map, row_map
 
 
-def solve_highs(handles: PyomoHandles, n_rows: int, n_cols: int, options: SolverOptions,
-                release_model: bool = True) -> Solution:
+def solve_highs(
+    handles: PyomoHandles, n_rows: int, n_cols: int, options: SolverOptions, release_model: bool = True
+) -> Solution:
     """Hand the model to HiGHS and solve it. With ``release_model`` (the default) the Pyomo model in ``handles`` is
     released once HiGHS holds the LP (``handles.release()``), which lowers the peak memory of a run; pass False to
     keep using the Pyomo model afterwards."""
@@ -160,8 +170,11 @@ def solve_highs(handles: PyomoHandles, n_rows: int, n_cols: int, options: Solver
     model_status = h.getModelStatus()
     status = _status_name(model_status)
     info = h.getInfo()
-    iterations = {"simplex": int(info.simplex_iteration_count), "ipm": int(info.ipm_iteration_count),
-                  "crossover": int(info.crossover_iteration_count)}
+    iterations = {
+        "simplex": int(info.simplex_iteration_count),
+        "ipm": int(info.ipm_iteration_count),
+        "crossover": int(info.crossover_iteration_count),
+    }
     x = np.zeros(n_cols)
     duals = np.zeros(n_rows)
     objective = math.nan
@@ -171,10 +184,23 @@ def solve_highs(handles: PyomoHandles, n_rows: int, n_cols: int, options: Solver
         if sol.dual_valid:
             duals[row_map] = np.asarray(sol.row_dual)
         objective = float(info.objective_function_value)
-    return Solution(status=status, objective=objective, x=x, row_dual=duals, method=options.method, options=highs_opts,
-                    handoff_s=handoff_s, solve_s=solve_s, rows=lp.num_row_, columns=lp.num_col_,
-                    nonzeros=len(lp.a_matrix_.value_), iterations=iterations, highs=h,
-                    row_map=row_map, col_map=col_map)
+    return Solution(
+        status=status,
+        objective=objective,
+        x=x,
+        row_dual=duals,
+        method=options.method,
+        options=highs_opts,
+        handoff_s=handoff_s,
+        solve_s=solve_s,
+        rows=lp.num_row_,
+        columns=lp.num_col_,
+        nonzeros=len(lp.a_matrix_.value_),
+        iterations=iterations,
+        highs=h,
+        row_map=row_map,
+        col_map=col_map,
+    )
 
 
 def new_highs(log: bool = False) -> highspy.Highs:

@@ -72,7 +72,9 @@ def test_caps_at_the_budget_pathway_price_like_the_budget(tiny_run):
     budget_price = tiny_run.result.carbon_price["from_budget_per_tco2"].to_numpy()
     caps = {int(y): float(e) for y, e in zip(inputs.years, emissions, strict=True)}
     capped = solve_inputs(_no_budget(inputs, emission_caps_mt=caps))
-    np.testing.assert_allclose(capped.result.emissions_total["emissions_mtco2"], emissions, rtol=1e-6, atol=1e-6)
+    np.testing.assert_allclose(
+        capped.result.emissions_total["emissions_mtco2"], emissions, rtol=1e-6, atol=1e-6
+    )
     assert capped.solution.objective == pytest.approx(tiny_run.solution.objective, rel=1e-9)
     cap_price = capped.result.carbon_price["from_cap_per_tco2"].to_numpy()
     df = inputs.discount_factor
@@ -80,8 +82,12 @@ def test_caps_at_the_budget_pathway_price_like_the_budget(tiny_run):
     for i, year in enumerate(inputs.years):
         if cap_price[i] <= 0:
             continue  # the cap does not bind
-        tight = solve_inputs(_no_budget(inputs, emission_caps_mt={**caps, int(year): caps[int(year)] - DELTA}))
-        loose = solve_inputs(_no_budget(inputs, emission_caps_mt={**caps, int(year): caps[int(year)] + DELTA}))
+        tight = solve_inputs(
+            _no_budget(inputs, emission_caps_mt={**caps, int(year): caps[int(year)] - DELTA})
+        )
+        loose = solve_inputs(
+            _no_budget(inputs, emission_caps_mt={**caps, int(year): caps[int(year)] + DELTA})
+        )
         upper = (tight.solution.objective - capped.solution.objective) / DELTA / df[i]
         lower = (capped.solution.objective - loose.solution.objective) / DELTA / df[i]
         assert lower * (1 - REL) <= budget_price[i] <= upper * (1 + REL), year

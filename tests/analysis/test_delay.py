@@ -72,11 +72,17 @@ def test_history_is_the_reference_and_the_budget_holds_after(study):
             continue
         r = case.run.result
         before = r.emissions_total["year"] < case.start_year
-        np.testing.assert_allclose(r.emissions_total.loc[before, "emissions_mtco2"],
-                                   ref.emissions_total.loc[before, "emissions_mtco2"], rtol=1e-7, atol=1e-7)
+        np.testing.assert_allclose(
+            r.emissions_total.loc[before, "emissions_mtco2"],
+            ref.emissions_total.loc[before, "emissions_mtco2"],
+            rtol=1e-7,
+            atol=1e-7,
+        )
         cap, ref_cap = r.capacity, ref.capacity
         early = cap["year"] < case.start_year
-        np.testing.assert_allclose(cap.loc[early, "new_mw"], ref_cap.loc[early, "new_mw"], rtol=1e-7, atol=1e-4)
+        np.testing.assert_allclose(
+            cap.loc[early, "new_mw"], ref_cap.loc[early, "new_mw"], rtol=1e-7, atol=1e-4
+        )
         assert r.emissions_total["emissions_mtco2"].sum() <= 45.0 * (1 + 1e-6)
         assert r.summary["unserved_electricity_twh"] <= 1e-6 and r.summary["unserved_fuel_pj"] <= 1e-6
 
@@ -106,8 +112,19 @@ def test_stranded_value_is_the_remaining_annuity(inputs):
             new[0] = 1000.0
             service = np.where(years >= 2027, 600.0, 1000.0)
         installed = existing + np.where(years >= 2025, new[0], 0.0)
-        frames.append(pd.DataFrame({"technology": t.name, "kind": t.kind, "year": years, "capacity_mw": service,
-                                    "new_mw": new, "retired_mw": 0.0, "early_retired_mw": installed - service}))
+        frames.append(
+            pd.DataFrame(
+                {
+                    "technology": t.name,
+                    "kind": t.kind,
+                    "year": years,
+                    "capacity_mw": service,
+                    "new_mw": new,
+                    "retired_mw": 0.0,
+                    "early_retired_mw": installed - service,
+                }
+            )
+        )
     result = RunResult.create("synthetic", {"capacity": pd.concat(frames, ignore_index=True)}, {}, {}, {})
     stranded = stranded_capacity(result, inputs)
     assert len(stranded) == 1
@@ -124,31 +141,47 @@ def test_crf_inversion_and_balance_fraction():
     # computed: (A/P, 7 %, 25) = 0.08581 (/work/shared/references.md, Economics): the rate comes back as 7 %
     assert rate_from_crf(0.0858105, 25) == pytest.approx(0.07, abs=1e-6)
     assert rate_from_crf(1 / 20, 20) == 0.0
-    assert remaining_balance_fraction(0.07, 25, 25) == pytest.approx(1.0, rel=1e-12)  # retired in its build year
+    assert remaining_balance_fraction(0.07, 25, 25) == pytest.approx(
+        1.0, rel=1e-12
+    )  # retired in its build year
     assert remaining_balance_fraction(0.0, 20, 5) == pytest.approx(0.25)
 
 
 def test_delay_command_writes_its_tables(study, tmp_path, capsys):
     out = tmp_path / "delay"
-    code = main(["delay", str(DATA / "analytics_budget.yaml"), "--start", "2029,2033", "--out", str(out), "--json"])
+    code = main(
+        ["delay", str(DATA / "analytics_budget.yaml"), "--start", "2029,2033", "--out", str(out), "--json"]
+    )
     assert code == 0
     payload = json.loads(capsys.readouterr().out)
     assert [row["start_year"] for row in payload["table"]] == [2029, 2033]
-    assert payload["diagnoses"]["2029"]["achievable"] is True and payload["diagnoses"]["2033"]["achievable"] is False
+    assert (
+        payload["diagnoses"]["2029"]["achievable"] is True
+        and payload["diagnoses"]["2033"]["achievable"] is False
+    )
     for name in ("delay.csv", "delay_pathways.csv", "delay_stranded.csv", "delay.json"):
         assert (out / name).is_file()
     pathways = pd.read_csv(out / "delay_pathways.csv")
     assert set(pathways["start_year"].astype(str)) == {"reference", "2029"}
     text = render_text(study)
-    assert "NOT ACHIEVABLE" in text and "start 2033: scenario 'analytics_budget': the carbon budget of 45.0 MtCO2" in text
+    assert (
+        "NOT ACHIEVABLE" in text
+        and "start 2033: scenario 'analytics_budget': the carbon budget of 45.0 MtCO2" in text
+    )
 
 
 def test_delay_error_paths(inputs, capsys):
-    with pytest.raises(ScenarioError, match=r"start year 2040 of scenario 'analytics_budget': expected a year from the base year 2025 to 2036"):
+    with pytest.raises(
+        ScenarioError,
+        match=r"start year 2040 of scenario 'analytics_budget': expected a year from the base year 2025 to 2036",
+    ):
         delayed_action(inputs, [2040])
     with pytest.raises(ScenarioError, match=r"--start: got no start year"):
         delayed_action(inputs, [])
-    with pytest.raises(ScenarioError, match=r"scenario 'analytics_budget': policy.carbon_budget: got none; expected a carbon budget"):
+    with pytest.raises(
+        ScenarioError,
+        match=r"scenario 'analytics_budget': policy.carbon_budget: got none; expected a carbon budget",
+    ):
         delayed_action(replace(inputs, budget_mt=None, budget_years=None), [2025])
     assert main(["delay", str(DATA / "analytics_budget.yaml"), "--start", "2025;2030"]) == 2
     assert "--start '2025;2030': expected whole years separated by commas" in capsys.readouterr().err

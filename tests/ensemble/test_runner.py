@@ -14,8 +14,13 @@ from pathcast.ensemble import ensemble_robustness_section, run_ensemble, summari
 from pathcast.ensemble import worker as worker_module
 from pathcast.ensemble.store import MemberStore
 
-COMPARED = ["total_discounted_cost_million", "cumulative_emissions_mtco2", "final_year_emissions_mtco2",
-            "carbon_price_final_year_per_tco2", "required_reduction_rate_per_yr"]
+COMPARED = [
+    "total_discounted_cost_million",
+    "cumulative_emissions_mtco2",
+    "final_year_emissions_mtco2",
+    "carbon_price_final_year_per_tco2",
+    "required_reduction_rate_per_yr",
+]
 
 
 @pytest.fixture
@@ -37,8 +42,9 @@ def serial_lhs(tmp_path_factory):
     from pathlib import Path
 
     out = tmp_path_factory.mktemp("serial") / "lhs"
-    run = run_ensemble(Path(__file__).resolve().parents[1] / "data" / "ensemble_lhs.yaml", out, serial=True,
-                       progress=False)
+    run = run_ensemble(
+        Path(__file__).resolve().parents[1] / "data" / "ensemble_lhs.yaml", out, serial=True, progress=False
+    )
     return run
 
 
@@ -46,15 +52,21 @@ def test_serial_run_writes_members_tables_and_figures(serial_lhs):
     out = serial_lhs.out
     assert serial_lhs.solved_now == 6 and serial_lhs.failed_now == 0 and serial_lhs.reference_solves == 1
     files = sorted(p.name for p in (out / "members").iterdir())
-    assert len(files) == 7 and all(f.endswith(".json") for f in files)  # 6 members + the base; no temporary files
+    assert len(files) == 7 and all(
+        f.endswith(".json") for f in files
+    )  # 6 members + the base; no temporary files
     members = pd.read_parquet(out / "tables" / "members.parquet")
     assert len(members) == 6 and (members["status"] == "solved").all()
-    assert {"solar_capex_multiplier", "gas_price_multiplier", "demand_growth", "budget_mt"} <= set(members.columns)
+    assert {"solar_capex_multiplier", "gas_price_multiplier", "demand_growth", "budget_mt"} <= set(
+        members.columns
+    )
     assert members["warm_start"].all() and (members["solve_path"] == "in_place").all()
     assert pd.read_csv(out / "tables" / "members.csv").shape == members.shape
     percentiles = pd.read_csv(out / "tables" / "yearly_percentiles.csv")
     assert {"emissions_mtco2", "cumulative_mtco2", "capacity_mw"} <= set(percentiles["quantity"])
-    assert (percentiles["p5"] <= percentiles["p50"] + 1e-9).all() and (percentiles["p50"] <= percentiles["p95"] + 1e-9).all()
+    assert (percentiles["p5"] <= percentiles["p50"] + 1e-9).all() and (
+        percentiles["p50"] <= percentiles["p95"] + 1e-9
+    ).all()
     for name in ("emissions_fan", "capacity_fan", "distributions", "budget_probability"):
         assert (out / "figures" / f"{name}.png").stat().st_size > 10_000
     summary = json.loads((out / "summary.json").read_text())
@@ -69,15 +81,21 @@ def test_distributed_run_equals_serial_run(serial_lhs, tmp_path):
     a = summarise_ensemble(serial_lhs.out).members.set_index("hash")
     b = summarise_ensemble(distributed.out).members.set_index("hash").loc[a.index]
     for column in COMPARED:
-        np.testing.assert_allclose(b[column].to_numpy(float), a[column].to_numpy(float), rtol=1e-9, err_msg=column)
+        np.testing.assert_allclose(
+            b[column].to_numpy(float), a[column].to_numpy(float), rtol=1e-9, err_msg=column
+        )
     ca = summarise_ensemble(serial_lhs.out).capacity.sort_values(["member", "technology", "year"])
     cb = summarise_ensemble(distributed.out).capacity.sort_values(["member", "technology", "year"])
-    np.testing.assert_allclose(cb["capacity_mw"].to_numpy(float), ca["capacity_mw"].to_numpy(float), atol=1e-6)
+    np.testing.assert_allclose(
+        cb["capacity_mw"].to_numpy(float), ca["capacity_mw"].to_numpy(float), atol=1e-6
+    )
 
 
 def test_interrupted_run_resumes_and_solves_only_the_rest(data_dir, tmp_path, count_solves):
     out = tmp_path / "resume"
-    first = run_ensemble(data_dir / "ensemble_lhs.yaml", out, serial=True, limit=2, progress=False, figures=False)
+    first = run_ensemble(
+        data_dir / "ensemble_lhs.yaml", out, serial=True, limit=2, progress=False, figures=False
+    )
     assert first.solved_now == 2 and len(count_solves) == 3  # the base (for its basis) + 2 members
     assert summarise_ensemble(out).stats["pending"] == 4
     count_solves.clear()
@@ -91,21 +109,47 @@ def test_interrupted_run_resumes_and_solves_only_the_rest(data_dir, tmp_path, co
 
 def test_failed_member_is_reported_and_the_others_finish(data_dir, tmp_path, count_solves, capsys):
     out = tmp_path / "fail"
-    code = main(["ensemble", str(data_dir / "ensemble_fail.yaml"), "--serial", "--out", str(out), "--quiet",
-                 "--no-figures"])
+    code = main(
+        [
+            "ensemble",
+            str(data_dir / "ensemble_fail.yaml"),
+            "--serial",
+            "--out",
+            str(out),
+            "--quiet",
+            "--no-figures",
+        ]
+    )
     assert code == 0
     captured = capsys.readouterr()
     assert "3 members (3 distinct scenarios), 2 solved, 1 failed" in captured.out
     assert "member 1 (sample): ScenarioError: " in captured.err
-    assert "technologies.generators.solar_pv.lifetime: got 0; expected greater than or equal to 1." in captured.err
+    assert (
+        "technologies.generators.solar_pv.lifetime: got 0; expected greater than or equal to 1."
+        in captured.err
+    )
     members = pd.read_csv(out / "tables" / "members.csv")
     assert list(members["status"]) == ["solved", "failed", "solved"]
     assert members.loc[1, "error_type"] == "ScenarioError"
     # a re-run keeps the invalid member's record (it would fail again) unless asked to retry it
     count_solves.clear()
-    assert run_ensemble(data_dir / "ensemble_fail.yaml", out, serial=True, progress=False, outputs=False).attempted == 0
-    assert run_ensemble(data_dir / "ensemble_fail.yaml", out, serial=True, progress=False, outputs=False,
-                        retry_failed=True).failed_now == 1
+    assert (
+        run_ensemble(
+            data_dir / "ensemble_fail.yaml", out, serial=True, progress=False, outputs=False
+        ).attempted
+        == 0
+    )
+    assert (
+        run_ensemble(
+            data_dir / "ensemble_fail.yaml",
+            out,
+            serial=True,
+            progress=False,
+            outputs=False,
+            retry_failed=True,
+        ).failed_now
+        == 1
+    )
 
 
 def test_transient_failure_is_solved_again(data_dir, tmp_path):
@@ -113,8 +157,14 @@ def test_transient_failure_is_solved_again(data_dir, tmp_path):
     run = run_ensemble(data_dir / "ensemble_fail.yaml", out, serial=True, progress=False, outputs=False)
     store = MemberStore(out)
     digest = run.hashes[0]
-    store.put({"hash": digest, "samples": {}, "status": "failed",
-               "error": {"type": "KilledWorker", "message": "worker died", "deterministic": False}})
+    store.put(
+        {
+            "hash": digest,
+            "samples": {},
+            "status": "failed",
+            "error": {"type": "KilledWorker", "message": "worker died", "deterministic": False},
+        }
+    )
     again = run_ensemble(data_dir / "ensemble_fail.yaml", out, serial=True, progress=False, outputs=False)
     assert again.solved_now == 1 and store.get(digest)["status"] == "solved"
 
@@ -124,10 +174,16 @@ def test_one_at_a_time_tornado_and_memo_section(data_dir, tmp_path):
     run = run_ensemble(data_dir / "ensemble_oat.yaml", out, serial=True, progress=False)
     assert run.solved_now == 5 and run.reference_solves == 1  # the base is a member: solved once
     tornado = pd.read_csv(out / "tables" / "tornado.csv")
-    emissions = tornado[(tornado["metric"] == "cumulative_emissions_mtco2") & (tornado["input"] == "budget_mt")].iloc[0]
+    emissions = tornado[
+        (tornado["metric"] == "cumulative_emissions_mtco2") & (tornado["input"] == "budget_mt")
+    ].iloc[0]
     # the budget binds in tiny.yaml, so cumulative emissions follow it (20 and 30 MtCO2, values of the fixture)
-    assert emissions["at_low"] == pytest.approx(20.0, abs=1e-6) and emissions["at_high"] == pytest.approx(30.0, abs=1e-6)
-    cost = tornado[(tornado["metric"] == "total_discounted_cost_million") & (tornado["input"] == "gas_price")].iloc[0]
+    assert emissions["at_low"] == pytest.approx(20.0, abs=1e-6) and emissions["at_high"] == pytest.approx(
+        30.0, abs=1e-6
+    )
+    cost = tornado[
+        (tornado["metric"] == "total_discounted_cost_million") & (tornado["input"] == "gas_price")
+    ].iloc[0]
     assert cost["at_low"] < cost["base"] < cost["at_high"]  # dearer gas costs more
     assert (out / "figures" / "tornado.png").is_file()
     section = ensemble_robustness_section(out)
@@ -161,7 +217,10 @@ inputs:
     assert row["budget_mtco2"] == 20 and row["budget_margin_mtco2"] == pytest.approx(-5.0, abs=1e-6)
     assert summary.stats["probability_within_budget"] == 0.0
     last = summary.yearly.sort_values("year").iloc[-1]
-    assert last["cumulative_in_budget_period_mtco2"] == pytest.approx(25.0, abs=1e-6) and last["budget_mtco2"] == 20
+    assert (
+        last["cumulative_in_budget_period_mtco2"] == pytest.approx(25.0, abs=1e-6)
+        and last["budget_mtco2"] == 20
+    )
 
 
 def test_cli_connects_to_an_existing_scheduler(data_dir, tmp_path, capsys):
@@ -169,8 +228,18 @@ def test_cli_connects_to_an_existing_scheduler(data_dir, tmp_path, capsys):
 
     with LocalCluster(n_workers=1, threads_per_worker=1, processes=True, dashboard_address=None) as cluster:
         address = cluster.scheduler_address
-        code = main(["ensemble", str(data_dir / "ensemble_fail.yaml"), "--scheduler", address, "--out",
-                     str(tmp_path / "remote"), "--quiet", "--no-figures"])
+        code = main(
+            [
+                "ensemble",
+                str(data_dir / "ensemble_fail.yaml"),
+                "--scheduler",
+                address,
+                "--out",
+                str(tmp_path / "remote"),
+                "--quiet",
+                "--no-figures",
+            ]
+        )
     assert code == 0
     out = capsys.readouterr().out
     assert f"(scheduler {address}, 1 worker)" in out and "2 solved, 1 failed" in out

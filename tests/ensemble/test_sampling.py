@@ -12,7 +12,9 @@ from pathcast.ensemble.sampling import design_members, frozen_distribution, inve
 from pathcast.ensemble.spec import load_ensemble
 from pathcast.scenario.loader import load_scenario_mapping
 
-KS_P_THRESHOLD = 0.05  # reject a marginal when the Kolmogorov-Smirnov p-value falls below 5 % (common practice)
+KS_P_THRESHOLD = (
+    0.05  # reject a marginal when the Kolmogorov-Smirnov p-value falls below 5 % (common practice)
+)
 
 LHS = """name: lhs
 base: BASE
@@ -121,14 +123,22 @@ inputs:
 """
     members = design_members(load_ensemble(write_ensemble(text)))
     assert len(members) == 6
-    assert sorted({m.samples["gas"] for m in members}) == pytest.approx([0.75, 1.25])  # mid-quantiles 1/4 and 3/4
+    assert sorted({m.samples["gas"] for m in members}) == pytest.approx(
+        [0.75, 1.25]
+    )  # mid-quantiles 1/4 and 3/4
     assert [m.samples["budget"] for m in members[:2]] == [20, 20]
 
 
 def test_one_at_a_time_design(data_dir):
     spec = load_ensemble(data_dir / "ensemble_oat.yaml")
     members = design_members(spec)
-    assert [m.role for m in members] == ["base", "gas_price:low", "gas_price:high", "budget_mt:low", "budget_mt:high"]
+    assert [m.role for m in members] == [
+        "base",
+        "gas_price:low",
+        "gas_price:high",
+        "budget_mt:low",
+        "budget_mt:high",
+    ]
     assert members[0].samples == {}
     assert members[1].samples["gas_price"] == pytest.approx(0.6)  # 10 % quantile of uniform(0.5, 1.5)
     assert members[2].samples["gas_price"] == pytest.approx(1.4)
@@ -148,7 +158,9 @@ def test_member_mapping_applies_samples_and_hash_matches_the_loader(data_dir):
     generators = raw["technologies"]["generators"]
     assert generators["solar_pv"]["capex"]["base"] == pytest.approx(800 * member.samples["solar_capex"])
     assert raw["policy"]["carbon_budget"]["total_mt"] == member.samples["budget_mt"]
-    assert spec.base_raw["technologies"]["generators"]["solar_pv"]["capex"]["base"] == 800  # the base is untouched
+    assert (
+        spec.base_raw["technologies"]["generators"]["solar_pv"]["capex"]["base"] == 800
+    )  # the base is untouched
     loaded = load_scenario_mapping(raw, spec.base_path)
     assert scenario_hash(raw) == loaded.input_hash
     assert scenario_hash(member_mapping(spec, {})) == spec.base_hash
@@ -166,4 +178,7 @@ inputs:
 """
     spec = load_ensemble(write_ensemble(text))
     raw = member_mapping(spec, design_members(spec)[0].samples)
-    assert raw["technologies"]["supplies"]["diesel_import"]["price"] == {2025: 30.0, 2029: 34.0}  # tiny.yaml x 2
+    assert raw["technologies"]["supplies"]["diesel_import"]["price"] == {
+        2025: 30.0,
+        2029: 34.0,
+    }  # tiny.yaml x 2

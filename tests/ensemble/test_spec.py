@@ -32,100 +32,142 @@ def test_valid_file_loads_with_paths_and_base_values(write_ensemble):
 
 def test_unknown_path_part_names_the_keys_and_suggests(write_ensemble):
     text = header() + GOOD_INPUT.replace("solar_pv", "solar_p")
-    with pytest.raises(ScenarioError, match=r"inputs\.solar\.path: got 'technologies\.generators\.solar_p\.capex\.base'; "
-                       r"expected a field path that exists in tiny\.yaml; 'solar_p' is not one of the keys under "
-                       r"technologies\.generators .*\(did you mean 'solar_pv'\?\)\.$"):
+    with pytest.raises(
+        ScenarioError,
+        match=r"inputs\.solar\.path: got 'technologies\.generators\.solar_p\.capex\.base'; "
+        r"expected a field path that exists in tiny\.yaml; 'solar_p' is not one of the keys under "
+        r"technologies\.generators .*\(did you mean 'solar_pv'\?\)\.$",
+    ):
         load_ensemble(write_ensemble(text))
 
 
 def test_path_into_a_number_is_an_error(write_ensemble):
     text = header() + GOOD_INPUT.replace("capex.base", "capex.base.more")
-    with pytest.raises(ScenarioError, match=r"technologies\.generators\.solar_pv\.capex\.base holds a single value"):
+    with pytest.raises(
+        ScenarioError, match=r"technologies\.generators\.solar_pv\.capex\.base holds a single value"
+    ):
         load_ensemble(write_ensemble(text))
 
 
 def test_unknown_distribution_suggests_the_closest(write_ensemble):
     text = header() + GOOD_INPUT.replace("distribution: uniform", "distribution: uniforn")
-    with pytest.raises(ScenarioError, match=r"inputs\.solar\.distribution: got 'uniforn'; expected one of \['uniform', "
-                       r".*\] \(did you mean 'uniform'\?\)\.$"):
+    with pytest.raises(
+        ScenarioError,
+        match=r"inputs\.solar\.distribution: got 'uniforn'; expected one of \['uniform', "
+        r".*\] \(did you mean 'uniform'\?\)\.$",
+    ):
         load_ensemble(write_ensemble(text))
 
 
 def test_neither_distribution_nor_values(write_ensemble):
     text = header() + "  solar:\n    path: technologies.generators.solar_pv.capex.base\n    as: multiplier\n"
-    with pytest.raises(ScenarioError, match=r"inputs\.solar: got \{.*\}; expected a 'distribution' \(one of .*\) or a "
-                       r"list of 'values'\.$"):
+    with pytest.raises(
+        ScenarioError,
+        match=r"inputs\.solar: got \{.*\}; expected a 'distribution' \(one of .*\) or a "
+        r"list of 'values'\.$",
+    ):
         load_ensemble(write_ensemble(text))
 
 
 def test_unknown_field_of_a_distribution(write_ensemble):
     text = header() + GOOD_INPUT.replace("high: 1.2", "high: 1.2\n    hihg: 3")
-    with pytest.raises(ScenarioError, match=r"inputs\.solar\.hihg: got 'hihg'; expected one of the fields \[.*'high'.*\] "
-                       r"\(did you mean 'high'\?\)\.$"):
+    with pytest.raises(
+        ScenarioError,
+        match=r"inputs\.solar\.hihg: got 'hihg'; expected one of the fields \[.*'high'.*\] "
+        r"\(did you mean 'high'\?\)\.$",
+    ):
         load_ensemble(write_ensemble(text))
 
 
 def test_unknown_top_level_field(write_ensemble):
     text = header(extra="members: 4\nseed: 1\nseeds: 2\n") + GOOD_INPUT
-    with pytest.raises(ScenarioError, match=r"seeds: got 'seeds'; expected one of the fields .* \(did you mean 'seed'\?\)"):
+    with pytest.raises(
+        ScenarioError, match=r"seeds: got 'seeds'; expected one of the fields .* \(did you mean 'seed'\?\)"
+    ):
         load_ensemble(write_ensemble(text))
 
 
 def test_missing_as(write_ensemble):
     text = header() + GOOD_INPUT.replace("    as: multiplier\n", "")
-    with pytest.raises(ScenarioError, match=r"inputs\.solar: got 'nothing'; expected the required field 'as'\.$"):
+    with pytest.raises(
+        ScenarioError, match=r"inputs\.solar: got 'nothing'; expected the required field 'as'\.$"
+    ):
         load_ensemble(write_ensemble(text))
 
 
 def test_latin_hypercube_needs_a_seed(write_ensemble):
     text = header(extra="members: 4\n") + GOOD_INPUT
-    with pytest.raises(ScenarioError, match=r"\(top level\): got .*; expected 'seed' \(a whole number, so the samples can "
-                       r"be made again\) with design latin_hypercube\.$"):
+    with pytest.raises(
+        ScenarioError,
+        match=r"\(top level\): got .*; expected 'seed' \(a whole number, so the samples can "
+        r"be made again\) with design latin_hypercube\.$",
+    ):
         load_ensemble(write_ensemble(text))
 
 
 def test_low_not_below_high(write_ensemble):
     text = header() + GOOD_INPUT.replace("low: 0.8", "low: 1.5")
-    with pytest.raises(ScenarioError, match=r"inputs\.solar: got .*; expected low below high, not low 1\.5 and high 1\.2\.$"):
+    with pytest.raises(
+        ScenarioError, match=r"inputs\.solar: got .*; expected low below high, not low 1\.5 and high 1\.2\.$"
+    ):
         load_ensemble(write_ensemble(text))
 
 
 def test_negative_sd(write_ensemble):
-    text = header() + ("  gas:\n    path: technologies.supplies.gas_import.price\n    as: multiplier\n"
-                       "    distribution: normal\n    mean: 1\n    sd: -0.1\n")
+    text = header() + (
+        "  gas:\n    path: technologies.supplies.gas_import.price\n    as: multiplier\n"
+        "    distribution: normal\n    mean: 1\n    sd: -0.1\n"
+    )
     with pytest.raises(ScenarioError, match=r"inputs\.gas\.sd: got -0\.1; expected greater than 0\.$"):
         load_ensemble(write_ensemble(text))
 
 
 def test_multiplier_on_a_mapping_that_is_no_time_path(write_ensemble):
     text = header() + GOOD_INPUT.replace("capex.base", "capex")
-    with pytest.raises(ScenarioError, match=re.escape("inputs.solar.path: got 'technologies.generators.solar_pv.capex'; "
-                       "expected a field holding a number, a quantity with a unit or a {year: value} path (this one holds "
-                       "a mapping with the keys ['annual_decline', 'base']: point the path at one of them, or use "
-                       "'as: absolute').")):
+    with pytest.raises(
+        ScenarioError,
+        match=re.escape(
+            "inputs.solar.path: got 'technologies.generators.solar_pv.capex'; "
+            "expected a field holding a number, a quantity with a unit or a {year: value} path (this one holds "
+            "a mapping with the keys ['annual_decline', 'base']: point the path at one of them, or use "
+            "'as: absolute')."
+        ),
+    ):
         load_ensemble(write_ensemble(text))
 
 
 def test_multiplier_values_must_be_numbers(write_ensemble):
-    text = header("grid", "") + ("  gas:\n    path: technologies.supplies.gas_import.price\n    as: multiplier\n"
-                                 "    values: [1, '9 USD/GJ']\n")
-    with pytest.raises(ScenarioError, match=r"inputs\.gas\.values\.1: got '9 USD/GJ'; expected a number \(a multiplier "
-                       r"of the base value\)\.$"):
+    text = header("grid", "") + (
+        "  gas:\n    path: technologies.supplies.gas_import.price\n    as: multiplier\n"
+        "    values: [1, '9 USD/GJ']\n"
+    )
+    with pytest.raises(
+        ScenarioError,
+        match=r"inputs\.gas\.values\.1: got '9 USD/GJ'; expected a number \(a multiplier "
+        r"of the base value\)\.$",
+    ):
         load_ensemble(write_ensemble(text))
 
 
 def test_grid_member_count_must_match(write_ensemble):
-    text = header("grid", "members: 5\n") + ("  budget:\n    path: policy.carbon_budget.total_mt\n    as: absolute\n"
-                                             "    values: [20, 30]\n")
-    with pytest.raises(ScenarioError, match=r"members: got 5; expected 2 \(the design grid makes that many\) or no "
-                       r"'members' field\.$"):
+    text = header("grid", "members: 5\n") + (
+        "  budget:\n    path: policy.carbon_budget.total_mt\n    as: absolute\n    values: [20, 30]\n"
+    )
+    with pytest.raises(
+        ScenarioError,
+        match=r"members: got 5; expected 2 \(the design grid makes that many\) or no "
+        r"'members' field\.$",
+    ):
         load_ensemble(write_ensemble(text))
 
 
 def test_same_field_twice(write_ensemble):
     text = header() + GOOD_INPUT + GOOD_INPUT.replace("  solar:", "  solar_again:")
-    with pytest.raises(ScenarioError, match=r"inputs\.solar_again\.path: .*expected a field not varied already "
-                       r"\(inputs\.solar varies it\)\.$"):
+    with pytest.raises(
+        ScenarioError,
+        match=r"inputs\.solar_again\.path: .*expected a field not varied already "
+        r"\(inputs\.solar varies it\)\.$",
+    ):
         load_ensemble(write_ensemble(text))
 
 
@@ -137,8 +179,11 @@ def test_missing_base_file(write_ensemble):
 
 def test_bad_input_label(write_ensemble):
     text = header() + GOOD_INPUT.replace("  solar:", "  2solar:")
-    with pytest.raises(ScenarioError, match=r"inputs\.2solar: got '2solar'; expected an input label of letters, digits and "
-                       r"underscores, starting with a letter\.$"):
+    with pytest.raises(
+        ScenarioError,
+        match=r"inputs\.2solar: got '2solar'; expected an input label of letters, digits and "
+        r"underscores, starting with a letter\.$",
+    ):
         load_ensemble(write_ensemble(text))
 
 
@@ -148,10 +193,12 @@ def test_no_such_ensemble_file(tmp_path):
 
 
 def test_year_key_and_list_index_paths(write_ensemble):
-    text = header() + ("  diesel_2029:\n    path: technologies.supplies.diesel_import.price.2029\n    as: multiplier\n"
-                       "    distribution: uniform\n    low: 0.9\n    high: 1.1\n"
-                       "  gas_fleet:\n    path: technologies.generators.gas_combined_cycle.existing.0.capacity_mw\n"
-                       "    as: multiplier\n    distribution: uniform\n    low: 0.9\n    high: 1.1\n")
+    text = header() + (
+        "  diesel_2029:\n    path: technologies.supplies.diesel_import.price.2029\n    as: multiplier\n"
+        "    distribution: uniform\n    low: 0.9\n    high: 1.1\n"
+        "  gas_fleet:\n    path: technologies.generators.gas_combined_cycle.existing.0.capacity_mw\n"
+        "    as: multiplier\n    distribution: uniform\n    low: 0.9\n    high: 1.1\n"
+    )
     spec = load_ensemble(write_ensemble(text))
     assert spec.paths["diesel_2029"][-1] == 2029
     assert spec.paths["gas_fleet"][-2:] == (0, "capacity_mw")
@@ -160,6 +207,9 @@ def test_year_key_and_list_index_paths(write_ensemble):
 def test_summary_of_a_folder_that_is_no_ensemble(tmp_path):
     from pathcast.ensemble import ensemble_robustness_section
 
-    with pytest.raises(ScenarioError, match=r"ensemble\.json: got no such file; expected an ensemble folder written by "
-                       r"'pathcast ensemble'\.$"):
+    with pytest.raises(
+        ScenarioError,
+        match=r"ensemble\.json: got no such file; expected an ensemble folder written by "
+        r"'pathcast ensemble'\.$",
+    ):
         ensemble_robustness_section(tmp_path)

@@ -26,9 +26,15 @@ def spec():
 
 
 def _context(spec, basis=None) -> SharedContext:
-    return SharedContext(base_raw=spec.base_raw, base_path=str(spec.base_path), base_hash=spec.base_hash,
-                         provenance=dict(spec.base.provenance), files=tuple(spec.base.files), warm_start=True,
-                         basis=basis)
+    return SharedContext(
+        base_raw=spec.base_raw,
+        base_path=str(spec.base_path),
+        base_hash=spec.base_hash,
+        provenance=dict(spec.base.provenance),
+        files=tuple(spec.base.files),
+        warm_start=True,
+        basis=basis,
+    )
 
 
 def test_in_place_model_equals_the_members_own_handoff(spec):
@@ -63,14 +69,17 @@ def test_warm_started_member_matches_the_pipeline(spec, tmp_path):
     path.write_text(yaml.safe_dump(raw), encoding="utf-8")
     reference = run_scenario(path).result.summary  # the ordinary pipeline, cold start
     assert record["headline"]["objective_million"] == pytest.approx(reference["objective_million"], rel=1e-7)
-    assert record["headline"]["cumulative_emissions_mtco2"] == pytest.approx(reference["cumulative_emissions_mtco2"],
-                                                                            rel=1e-7)
+    assert record["headline"]["cumulative_emissions_mtco2"] == pytest.approx(
+        reference["cumulative_emissions_mtco2"], rel=1e-7
+    )
     # fewer simplex iterations than a cold start: the point of the warm start
     assert record["solver"]["iterations"]["simplex"] < base_record["solver"]["iterations"]["simplex"]
 
 
 def test_failed_member_is_a_record_not_an_exception(spec):
-    task = MemberTask("x" * 64, {"budget_mt": -5}, ((("policy", "carbon_budget", "total_mt"), "absolute", -5),))
+    task = MemberTask(
+        "x" * 64, {"budget_mt": -5}, ((("policy", "carbon_budget", "total_mt"), "absolute", -5),)
+    )
     record = solve_member(task, _context(spec))
     assert record["status"] == "failed"
     assert record["error"]["type"] == "ScenarioError" and record["error"]["deterministic"] is True

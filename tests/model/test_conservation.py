@@ -20,7 +20,9 @@ def test_electricity_balances_close_in_every_hour(tiny_run):
 
 def test_fuel_balances_close_every_year(tiny_run):
     flows = tiny_run.result.fuel_flows
-    sign = flows["role"].map({"supply": 1, "conversion_output": 1, "power_input": -1, "conversion_input": -1, "final_use": -1})
+    sign = flows["role"].map(
+        {"supply": 1, "conversion_output": 1, "power_input": -1, "conversion_input": -1, "final_use": -1}
+    )
     net = (flows["energy_pj"] * sign).groupby([flows["commodity"], flows["year"]]).sum()
     assert (net > -1e-6).all()  # supply covers use
     assert net.abs().max() < 1e-5  # and nothing is wasted when every fuel has a cost
@@ -29,15 +31,21 @@ def test_fuel_balances_close_every_year(tiny_run):
 def test_electrolyser_draws_the_electricity_its_hydrogen_needs(tiny_run):
     r = tiny_run.result
     drawn_twh = r.electricity.query("technology == 'electrolyser'").set_index("year")["consumption_twh"]
-    made_pj = r.fuel_flows.query("technology == 'electrolyser' and role == 'conversion_output'").set_index("year")["energy_pj"]
+    made_pj = r.fuel_flows.query("technology == 'electrolyser' and role == 'conversion_output'").set_index(
+        "year"
+    )["energy_pj"]
     efficiency = load_scenario(DATA / "tiny.yaml").scenario.technologies.converters["electrolyser"].efficiency
-    assert made_pj.to_numpy() == pytest.approx(drawn_twh.to_numpy() * 1000 * PJ_PER_GWH * efficiency, rel=1e-9)
+    assert made_pj.to_numpy() == pytest.approx(
+        drawn_twh.to_numpy() * 1000 * PJ_PER_GWH * efficiency, rel=1e-9
+    )
 
 
 def test_cumulative_emissions_sum_yearly_and_stay_within_budget(tiny_run):
     r = tiny_run.result
     total = r.emissions_total
-    assert total["cumulative_mtco2"].to_numpy() == pytest.approx(np.cumsum(total["emissions_mtco2"].to_numpy()))
+    assert total["cumulative_mtco2"].to_numpy() == pytest.approx(
+        np.cumsum(total["emissions_mtco2"].to_numpy())
+    )
     by_source = r.emissions.groupby("year")["emissions_mtco2"].sum()
     assert by_source.to_numpy() == pytest.approx(total["emissions_mtco2"].to_numpy(), rel=1e-9)
     budget = r.summary["carbon_budget_mtco2"]
@@ -62,10 +70,19 @@ def test_builds_within_limits_and_capacity_within_lifetime(tiny_run):
     solar = cap[cap["technology"] == "solar_pv"]
     assert (solar["new_mw"] <= s.technologies.generators["solar_pv"].max_build_mw_per_year + 1e-6).all()
     assert (cap["new_mw"] >= -1e-9).all()
-    lifetimes = {**{k: g.lifetime for k, g in s.technologies.generators.items()},
-                 **{k: g.lifetime for k, g in s.technologies.storage.items()},
-                 **{k: g.lifetime for k, g in s.technologies.converters.items()}}
-    existing = {k: g.existing for k, g in {**s.technologies.generators, **s.technologies.storage, **s.technologies.converters}.items()}
+    lifetimes = {
+        **{k: g.lifetime for k, g in s.technologies.generators.items()},
+        **{k: g.lifetime for k, g in s.technologies.storage.items()},
+        **{k: g.lifetime for k, g in s.technologies.converters.items()},
+    }
+    existing = {
+        k: g.existing
+        for k, g in {
+            **s.technologies.generators,
+            **s.technologies.storage,
+            **s.technologies.converters,
+        }.items()
+    }
     for tech, frame in cap.groupby("technology"):
         frame = frame.sort_values("year")
         years, new = frame["year"].to_numpy(), frame["new_mw"].to_numpy()

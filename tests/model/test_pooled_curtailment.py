@@ -36,7 +36,9 @@ def test_same_optimum_with_fewer_rows(both):
     assert per_generator.solution.rows - pooled.solution.rows == hours
     assert per_generator.solution.columns - pooled.solution.columns == hours
     a, b = pooled.result.emissions_total, per_generator.result.emissions_total
-    assert a["emissions_mtco2"].to_numpy() == pytest.approx(b["emissions_mtco2"].to_numpy(), rel=1e-7, abs=1e-9)
+    assert a["emissions_mtco2"].to_numpy() == pytest.approx(
+        b["emissions_mtco2"].to_numpy(), rel=1e-7, abs=1e-9
+    )
 
 
 def test_capacity_and_carbon_price_agree(both):
@@ -61,8 +63,10 @@ def test_pooled_output_stays_within_availability_and_balances_close(both):
     for t in ctx.pooled_generators:
         power = hourly[hourly["technology"] == t.name]
         assert (power["power_mw"] >= -1e-9).all()
-        available = (capacity.loc[t.name].reindex(power["year"]).to_numpy()
-                     * t.availability[[ctx.inputs.day_names.index(d) for d in power["day"]], power["hour"]])
+        available = (
+            capacity.loc[t.name].reindex(power["year"]).to_numpy()
+            * t.availability[[ctx.inputs.day_names.index(d) for d in power["day"]], power["hour"]]
+        )
         assert (power["power_mw"].to_numpy() <= available + 1e-6).all()
 
 
@@ -70,15 +74,21 @@ def test_curtailed_energy_is_available_less_generated(both):
     for run in both:
         el = run.result.electricity.set_index(["technology", "year"])
         assert (el["curtailed_twh"] >= 0).all()
-        assert (el.loc["gas_combined_cycle", "curtailed_twh"] == 0).all()  # burns fuel: never counted as curtailed
+        assert (
+            el.loc["gas_combined_cycle", "curtailed_twh"] == 0
+        ).all()  # burns fuel: never counted as curtailed
         free = el.loc[["solar_pv", "wind_onshore"]]
         # available energy = generated + curtailed, from the capacity and the profiles
         ctx = run.model.context
         capacity = run.result.capacity.set_index(["technology", "year"])["capacity_mw"]
         w = ctx.inputs.day_weights
         for t in ctx.pooled_generators or [g for g in ctx.generators if g.fuel is None]:
-            available = capacity.loc[t.name].to_numpy() * float((t.availability * w[:, None]).sum()) / 1e6  # TWh
-            both_parts = free.loc[t.name, "generation_twh"].to_numpy() + free.loc[t.name, "curtailed_twh"].to_numpy()
+            available = (
+                capacity.loc[t.name].to_numpy() * float((t.availability * w[:, None]).sum()) / 1e6
+            )  # TWh
+            both_parts = (
+                free.loc[t.name, "generation_twh"].to_numpy() + free.loc[t.name, "curtailed_twh"].to_numpy()
+            )
             assert both_parts == pytest.approx(available, rel=1e-6, abs=1e-9)
 
 

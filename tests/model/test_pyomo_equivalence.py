@@ -41,9 +41,15 @@ def test_pyomo_route_matches_bare_array_lp_on_tiny():
     inputs = prepare_inputs(load_scenario(DATA / "tiny.yaml").scenario)
     model = build_linear_program(inputs)
     matrix, _, _ = model.lp.matrix()
-    solution = solve_highs(to_pyomo(model.lp), matrix.shape[0], matrix.shape[1], SolverOptions(method="simplex"))
+    solution = solve_highs(
+        to_pyomo(model.lp), matrix.shape[0], matrix.shape[1], SolverOptions(method="simplex")
+    )
     assert solution.status == "optimal"
-    assert (solution.rows, solution.columns, solution.nonzeros) == (matrix.shape[0], matrix.shape[1], matrix.nnz)
+    assert (solution.rows, solution.columns, solution.nonzeros) == (
+        matrix.shape[0],
+        matrix.shape[1],
+        matrix.nnz,
+    )
     bare = _bare_objective(model.lp)
     assert abs(solution.objective - bare) <= 1e-7 * abs(bare)
 

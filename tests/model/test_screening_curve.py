@@ -25,12 +25,21 @@ PEAK = {"capex": 500.0, "fixed_om": 10.0, "variable_om": 52.0}
 
 def _scenario() -> dict:
     energy_twh = sum(level * 24 * w for level, w in zip(LEVELS_MW, WEIGHTS, strict=True)) / 1e6
-    days = [{"name": f"level_{i}", "weight_days": w, "demand_shape": [level] * 24}
-            for i, (level, w) in enumerate(zip(LEVELS_MW, WEIGHTS, strict=True))]
+    days = [
+        {"name": f"level_{i}", "weight_days": w, "demand_shape": [level] * 24}
+        for i, (level, w) in enumerate(zip(LEVELS_MW, WEIGHTS, strict=True))
+    ]
     plant = {"lifetime": LIFETIME, "availability": 1.0}
     return {
-        "metadata": {"name": "screening", "base_year": 2030, "final_year": 2030, "currency": "USD", "price_year": 2024,
-                     "discount_rate": RATE, "value_of_lost_load": 100000},
+        "metadata": {
+            "name": "screening",
+            "base_year": 2030,
+            "final_year": 2030,
+            "currency": "USD",
+            "price_year": 2024,
+            "discount_rate": RATE,
+            "value_of_lost_load": 100000,
+        },
         "time": {"representative_days": days},
         "demand": {"electricity": {"base_year_twh": energy_twh}},
         "technologies": {"generators": {"base_plant": {**plant, **BASE}, "peaking_plant": {**plant, **PEAK}}},
@@ -56,7 +65,11 @@ def test_screening_curve_mix(tmp_path):
     # cost by hand: fixed costs + each slice of the curve run by the cheaper plant
     energy_base = sum(min(level, base_mw) * 24 * w for level, w in zip(LEVELS_MW, WEIGHTS, strict=True))
     energy_peak = sum(max(level - base_mw, 0) * 24 * w for level, w in zip(LEVELS_MW, WEIGHTS, strict=True))
-    by_hand = (fixed_base * base_mw + fixed_peak * peak_mw + BASE["variable_om"] * energy_base
-               + PEAK["variable_om"] * energy_peak) / 1e6  # million currency
+    by_hand = (
+        fixed_base * base_mw
+        + fixed_peak * peak_mw
+        + BASE["variable_om"] * energy_base
+        + PEAK["variable_om"] * energy_peak
+    ) / 1e6  # million currency
     assert run.result.summary["total_discounted_cost_million"] == pytest.approx(by_hand, rel=1e-6)
     assert run.solution.objective == pytest.approx(by_hand, rel=1e-6)

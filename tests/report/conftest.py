@@ -29,12 +29,18 @@ def tiny_folder(tiny_run, tmp_path_factory):
     """The tiny run written by write_result (CSV only), as 'pathcast run' writes it."""
     from pathcast.results.writers import write_result
 
-    return write_result(tiny_run.result, tmp_path_factory.mktemp("results") / "tiny", parquet=False, excel=False)
+    return write_result(
+        tiny_run.result, tmp_path_factory.mktemp("results") / "tiny", parquet=False, excel=False
+    )
 
 
 @pytest.fixture(scope="session")
 def reference_folder(reference_run, tmp_path_factory):
     from pathcast.results.writers import write_result
 
-    return write_result(reference_run.result, tmp_path_factory.mktemp("results") / "tiny_reference", parquet=False,
-                        excel=False)
+    return write_result(
+        reference_run.result,
+        tmp_path_factory.mktemp("results") / "tiny_reference",
+        parquet=False,
+        excel=False,
+    )

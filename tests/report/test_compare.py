@@ -49,7 +49,9 @@ def test_budget_and_rate_rows(reference_run, tiny_run):
     # tiny runs 2025-2029: five years on lies outside the horizon
     assert math.isnan(table.loc["required_rate_from_start_plus_5_per_year", "tiny"])
     _, periods = realised_rates(tiny, period_years=4)
-    assert same(table.loc["realised_compound_rate_per_year", "tiny"], periods["compound_rate_per_year"].iloc[0])
+    assert same(
+        table.loc["realised_compound_rate_per_year", "tiny"], periods["compound_rate_per_year"].iloc[0]
+    )
     # the reference has no budget: it is measured against tiny's 25 MtCO2
     assert table.loc["carbon_budget_mtco2", "tiny_reference"] is None
     assert table.loc["comparison_budget_mtco2", "tiny_reference"] == 25.0
@@ -62,8 +64,9 @@ def test_budget_and_rate_rows(reference_run, tiny_run):
 def test_abatement_cost(reference_run, tiny_run):
     first, second = reference_run.result.summary, tiny_run.result.summary
     table = compare([reference_run.result, tiny_run.result])
-    expected = ((second["total_discounted_cost_million"] - first["total_discounted_cost_million"])
-                / (first["cumulative_emissions_mtco2"] - second["cumulative_emissions_mtco2"]))
+    expected = (second["total_discounted_cost_million"] - first["total_discounted_cost_million"]) / (
+        first["cumulative_emissions_mtco2"] - second["cumulative_emissions_mtco2"]
+    )
     assert math.isnan(table.loc["abatement_cost_per_tco2", "tiny_reference"])
     assert table.loc["abatement_cost_per_tco2", "tiny"] == pytest.approx(expected, rel=1e-12)
     assert expected > 0  # the budget costs money and avoids CO2
@@ -78,7 +81,10 @@ def test_same_scenario_twice_has_no_abatement_cost(tiny_run):
 def test_carbon_price_rows(tiny_run):
     table = compare([tiny_run.result])
     first, last = milestone_years(tiny_run.result)
-    assert (first, last) == (2027, 2029)  # no decade year inside 2025-2029: the middle year and the final year
+    assert (first, last) == (
+        2027,
+        2029,
+    )  # no decade year inside 2025-2029: the middle year and the final year
     price = tiny_run.result.carbon_price.set_index("year")["carbon_price_per_tco2"]
     assert same(table.loc["carbon_price_2029_per_tco2", "tiny"], price[2029])
 

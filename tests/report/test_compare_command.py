@@ -15,13 +15,17 @@ from tests.conftest import DATA
 
 def test_compare_command(reference_folder, tmp_path, capsys):
     out = tmp_path / "comparison"
-    code = main(["compare", str(reference_folder), str(DATA / "tiny.yaml"), "--out", str(out), "--json", "--quiet"])
+    code = main(
+        ["compare", str(reference_folder), str(DATA / "tiny.yaml"), "--out", str(out), "--json", "--quiet"]
+    )
     assert code == 0
     printed = json.loads(capsys.readouterr().out)
     assert list(printed) == ["tiny_reference", "tiny"]
     assert printed["tiny"]["budget_exhaustion_year"] is None
     table = pd.read_csv(out / "comparison.csv", index_col="metric")
-    assert float(table.loc["cumulative_emissions_mtco2", "tiny"]) == pytest.approx(printed["tiny"]["cumulative_emissions_mtco2"])
+    assert float(table.loc["cumulative_emissions_mtco2", "tiny"]) == pytest.approx(
+        printed["tiny"]["cumulative_emissions_mtco2"]
+    )
     for name in OVERLAY_FIGURES:
         assert (out / f"{name}.png").is_file() and (out / f"{name}.svg").is_file()
 
@@ -46,4 +50,7 @@ def test_compare_refuses_foreign_folder(tiny_folder, tmp_path, capsys):
 def test_compare_missing_input(tmp_path, capsys):
     code = main(["compare", str(tmp_path / "nothing.yaml"), "--out", str(tmp_path / "c"), "--quiet"])
     assert code == 2
-    assert "got no such file or folder; expected a scenario YAML file or a result folder" in capsys.readouterr().err
+    assert (
+        "got no such file or folder; expected a scenario YAML file or a result folder"
+        in capsys.readouterr().err
+    )

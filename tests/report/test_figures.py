@@ -69,7 +69,9 @@ def test_overlay_figure_several_scenarios(reference_run, tiny_run, tmp_path, nam
     fig = OVERLAY_FIGURES[name]([reference_run.result, tiny_run.result])
     check_axes(fig)
     texts = [t.get_text() for t in fig.legends[0].get_texts()]
-    assert any("tiny_reference" in t for t in texts) and any(t.startswith("tiny") and "reference" not in t for t in texts)
+    assert any("tiny_reference" in t for t in texts) and any(
+        t.startswith("tiny") and "reference" not in t for t in texts
+    )
     check_written(fig, tmp_path, name)
 
 
@@ -113,7 +115,9 @@ def test_capacity_uses_colour_table(tiny_run):
         assert (patch.get_hatch() or "") == hatch
     areas = fig.axes[0].collections
     wanted = {to_rgba(technology_style(n)[0]) for n in names}
-    assert {tuple(np.round(a.get_facecolor()[0], 6)) for a in areas} <= {tuple(np.round(w, 6)) for w in wanted}
+    assert {tuple(np.round(a.get_facecolor()[0], 6)) for a in areas} <= {
+        tuple(np.round(w, 6)) for w in wanted
+    }
 
 
 def test_capacity_axis_in_mw_for_small_systems(tiny_run):

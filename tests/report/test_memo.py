@@ -40,7 +40,7 @@ def shown_equals(text: str, value) -> bool:
         return text == value
     number = float(text.replace(",", ""))
     decimals = len(text.split(".")[1]) if "." in text else 0
-    return abs(number - float(value)) <= 0.5 * 10 ** -decimals + 1e-9
+    return abs(number - float(value)) <= 0.5 * 10**-decimals + 1e-9
 
 
 def summary_items(summary: dict):
@@ -150,7 +150,9 @@ def test_changed_scenario_file_limits_assumptions(tmp_path):
     assert main(["memo", str(folder), "--out", str(out), "--quiet"]) == 0
     text = (out / "memo.md").read_text()
     assert "has changed since the run" in text
-    assert table_rows(text)["discount rate"][0] == "7 %"  # the run's own value from metadata.json, not the new 5 %
+    assert (
+        table_rows(text)["discount rate"][0] == "7 %"
+    )  # the run's own value from metadata.json, not the new 5 %
 
 
 def test_default_folder(tiny_folder, tmp_path, monkeypatch):
@@ -186,19 +188,22 @@ def test_rewrite_replaces_earlier_memo(tiny_folder, tmp_path):
     assert not (out / "figures" / "stale.png").exists()
 
 
-@pytest.mark.parametrize(("value", "metric", "shown"), [
-    (6700.078970615261, "total_discounted_cost_million", "6,700"),
-    (25.000000000000004, "cumulative_emissions_mtco2", "25.00"),
-    (-0.0, "final_year_capacity_mw.fuel_synthesis", "0"),
-    (136.548, "final_year_capacity_mw.electrolyser", "136.5"),
-    (0.5, "unserved_fuel_pj", "0.500"),
-    (2025, "base_year", "2025"),
-    (3360.7, "peak_build_mw_per_year", "3,361"),
-    (0.0745, "required_rate_from_start_per_year", "7.45"),
-    (None, "carbon_budget_mtco2", MISSING),
-    (float("nan"), "abatement_cost_per_tco2", MISSING),
-    (True, "within_budget", "yes"),
-])
+@pytest.mark.parametrize(
+    ("value", "metric", "shown"),
+    [
+        (6700.078970615261, "total_discounted_cost_million", "6,700"),
+        (25.000000000000004, "cumulative_emissions_mtco2", "25.00"),
+        (-0.0, "final_year_capacity_mw.fuel_synthesis", "0"),
+        (136.548, "final_year_capacity_mw.electrolyser", "136.5"),
+        (0.5, "unserved_fuel_pj", "0.500"),
+        (2025, "base_year", "2025"),
+        (3360.7, "peak_build_mw_per_year", "3,361"),
+        (0.0745, "required_rate_from_start_per_year", "7.45"),
+        (None, "carbon_budget_mtco2", MISSING),
+        (float("nan"), "abatement_cost_per_tco2", MISSING),
+        (True, "within_budget", "yes"),
+    ],
+)
 def test_format_value(value, metric, shown):
     assert format_value(value, metric) == shown
 

@@ -42,10 +42,25 @@ def test_figures_load_in_chromium(tiny_folder, tmp_path):
     page = tmp_path / "probe.html"
     page.write_text((out / "memo.html").read_text().replace("</body>", PROBE + "</body>"))
     run = subprocess.run(
-        [str(CHROMIUM), "--headless", "--no-sandbox", "--disable-gpu", "--no-first-run",
-         "--disable-background-networking", "--disable-component-update", "--disable-sync",
-         f"--user-data-dir={tmp_path / 'profile'}", "--virtual-time-budget=10000", "--dump-dom", page.as_uri()],
-        capture_output=True, text=True, timeout=180, check=False)
+        [
+            str(CHROMIUM),
+            "--headless",
+            "--no-sandbox",
+            "--disable-gpu",
+            "--no-first-run",
+            "--disable-background-networking",
+            "--disable-component-update",
+            "--disable-sync",
+            f"--user-data-dir={tmp_path / 'profile'}",
+            "--virtual-time-budget=10000",
+            "--dump-dom",
+            page.as_uri(),
+        ],
+        capture_output=True,
+        text=True,
+        timeout=180,
+        check=False,
+    )
     assert run.returncode == 0, run.stderr[-2000:]
     body = re.search(r"<body([^>]*)>", run.stdout)
     assert body, run.stdout[:500]

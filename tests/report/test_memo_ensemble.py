@@ -51,7 +51,7 @@ def three_digits_equal(text: str, value: float) -> bool:
 
 def last_digit_equal(text: str, value: float) -> bool:
     decimals = len(text.split(".")[1]) if "." in text else 0
-    return abs(number(text) - value) <= 0.5 * 10 ** -decimals + 1e-9
+    return abs(number(text) - value) <= 0.5 * 10**-decimals + 1e-9
 
 
 def section_of(markdown: str, heading: str) -> str:
@@ -120,8 +120,11 @@ def test_finding_gives_probability_and_cost_range(memo_dir, summary):
     assert "around this scenario" in finding  # tiny.yaml is the ensemble's base scenario
     probability = re.search(r"probability of staying within the carbon budget is (\d+) %", finding)
     assert probability and abs(int(probability[1]) - 100 * summary["probability_within_budget"]) <= 0.5
-    cost = re.search(r"total discounted system cost ranges from ([\d,.]+) to ([\d,.]+) million USD of 2024 "
-                     r"\(5-95 %, median ([\d,.]+)\)", finding)
+    cost = re.search(
+        r"total discounted system cost ranges from ([\d,.]+) to ([\d,.]+) million USD of 2024 "
+        r"\(5-95 %, median ([\d,.]+)\)",
+        finding,
+    )
     assert cost
     values = summary["headline_percentiles"]["total_discounted_cost_million"]
     for shown, percentile in zip(cost.groups(), ("p5", "p95", "p50"), strict=True):
@@ -141,7 +144,9 @@ def test_figures_copied_and_embedded(memo_dir, ensemble_dir):
     sources = re.findall(r'src="([^"]*)"', page)
     assert len(sources) == len(links)
     assert all(src.startswith("data:image/png;base64,") for src in sources)
-    assert str(ensemble_dir) not in re.sub(r"<table>.*?</table>", "", page, flags=re.S)  # only the provenance names it
+    assert str(ensemble_dir) not in re.sub(
+        r"<table>.*?</table>", "", page, flags=re.S
+    )  # only the provenance names it
 
 
 def test_cautions_and_provenance_kept(memo_dir, ensemble_dir, summary):
@@ -150,7 +155,11 @@ def test_cautions_and_provenance_kept(memo_dir, ensemble_dir, summary):
     provenance = table_rows(section_of(markdown, "## Provenance"))
     assert provenance["tiny"][0].endswith("tiny.yaml")
     row = provenance[summary["name"]]
-    assert row[0] == str(ensemble_dir) and row[1].endswith("ensemble_lhs.yaml") and row[3] == summary["base_hash"][:12]
+    assert (
+        row[0] == str(ensemble_dir)
+        and row[1].endswith("ensemble_lhs.yaml")
+        and row[3] == summary["base_hash"][:12]
+    )
     assert row[4] == f"{summary['solved']} of {summary['members']}"
 
 
@@ -190,8 +199,10 @@ def test_folder_neither_result_nor_ensemble(tiny_folder, tmp_path, capsys):
     stray = tmp_path / "stray"
     stray.mkdir()
     (stray / "notes.txt").write_text("not a result")
-    message = (r"stray: got a folder with neither summary\.json nor ensemble\.json; expected a result folder written by "
-               r"'pathcast run' or an ensemble folder written by 'pathcast ensemble'\.")
+    message = (
+        r"stray: got a folder with neither summary\.json nor ensemble\.json; expected a result folder written by "
+        r"'pathcast run' or an ensemble folder written by 'pathcast ensemble'\."
+    )
     with pytest.raises(ScenarioError, match=message):
         split_inputs([tiny_folder, stray])
     out = tmp_path / "memo"
@@ -201,6 +212,9 @@ def test_folder_neither_result_nor_ensemble(tiny_folder, tmp_path, capsys):
 
 
 def test_missing_input_names_every_kind(tmp_path):
-    with pytest.raises(ScenarioError, match=r"missing: got no such file or folder; expected a scenario YAML file, a "
-                                            r"result folder written by 'pathcast run' or an ensemble folder"):
+    with pytest.raises(
+        ScenarioError,
+        match=r"missing: got no such file or folder; expected a scenario YAML file, a "
+        r"result folder written by 'pathcast run' or an ensemble folder",
+    ):
         split_inputs([tmp_path / "missing"])

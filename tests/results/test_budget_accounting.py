@@ -33,7 +33,11 @@ def test_ar6_remaining_budgets_table_spm2():
 
 def test_tcre_constants_and_warming_of_the_1p5_budget():
     # IPCC (2021) AR6 WG1 SPM D.1.1 (confirmed): 0.45 C per 1000 GtCO2, likely 0.27-0.63 C.
-    assert (TCRE_LOW_C_PER_1000_GTCO2, TCRE_BEST_C_PER_1000_GTCO2, TCRE_HIGH_C_PER_1000_GTCO2) == (0.27, 0.45, 0.63)
+    assert (TCRE_LOW_C_PER_1000_GTCO2, TCRE_BEST_C_PER_1000_GTCO2, TCRE_HIGH_C_PER_1000_GTCO2) == (
+        0.27,
+        0.45,
+        0.63,
+    )
     # computed: the 500 GtCO2 (1.5 C, 50 %) budget at 0.45 C/1000 GtCO2 is 0.225 C of further warming
     warming = warming_from_cumulative_co2(500.0 * 1000.0)  # MtCO2
     assert warming["warming_best_c"] == pytest.approx(0.225, rel=1e-12)
@@ -42,7 +46,9 @@ def test_tcre_constants_and_warming_of_the_1p5_budget():
 
 
 def test_remaining_budget_errors():
-    with pytest.raises(ScenarioError, match=r"warming limit 3\.0 C has no AR6 remaining budget; expected one of"):
+    with pytest.raises(
+        ScenarioError, match=r"warming limit 3\.0 C has no AR6 remaining budget; expected one of"
+    ):
         remaining_budget_gtco2(3.0)
     with pytest.raises(ScenarioError, match=r"likelihood 0\.9 has no AR6 remaining budget"):
         remaining_budget_gtco2(1.5, 0.9)
@@ -54,14 +60,24 @@ def test_accounting_of_the_tiny_budget_run(tiny_run):
     account = budget_accounting(tiny_run.result)
     assert isinstance(account, BudgetAccount)
     table = account.table
-    assert list(table.columns[:5]) == ["year", "emissions_mtco2", "cumulative_mtco2", "budget_mtco2", "remaining_mtco2"]
+    assert list(table.columns[:5]) == [
+        "year",
+        "emissions_mtco2",
+        "cumulative_mtco2",
+        "budget_mtco2",
+        "remaining_mtco2",
+    ]
     assert table["cumulative_mtco2"].iloc[-1] == pytest.approx(25.0, rel=1e-6)
     np.testing.assert_allclose(table["remaining_mtco2"], 25.0 - table["cumulative_mtco2"])
     assert account.exhaustion_year is None
     assert account.headroom_final_mtco2 == pytest.approx(0.0, abs=1e-5)
     # warming of 25 MtCO2 by TCRE (AR6 WG1 SPM D.1.1): 25e-6 x 1000 GtCO2 x 0.45 C
     assert account.warming["warming_best_c"] == pytest.approx(25.0 / 1e6 * 0.45, rel=1e-6)
-    assert account.warming["warming_low_c"] < account.warming["warming_best_c"] < account.warming["warming_high_c"]
+    assert (
+        account.warming["warming_low_c"]
+        < account.warming["warming_best_c"]
+        < account.warming["warming_high_c"]
+    )
 
 
 def test_a_smaller_budget_is_exhausted_in_the_year_it_is_passed(tiny_run):

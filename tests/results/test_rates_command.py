@@ -12,7 +12,10 @@ from tests.conftest import DATA
 
 
 def test_rates_on_a_file_prints_the_table(capsys):
-    assert main(["rates", str(DATA / "tiny.yaml"), "--from", "2025", "--to", "2028", "--step", "1", "--quiet"]) == 0
+    assert (
+        main(["rates", str(DATA / "tiny.yaml"), "--from", "2025", "--to", "2028", "--step", "1", "--quiet"])
+        == 0
+    )
     out = capsys.readouterr().out
     assert "Required reduction rates, scenario 'tiny': budget 25.0 MtCO2 for 2025-2029" in out
     assert out.count("\n  202") >= 4  # one row per start year 2025-2028
@@ -43,7 +46,9 @@ def test_rates_error_paths(tmp_path, capsys):
     assert main(["rates", str(tmp_path / "missing.yaml")]) == 2
     assert "missing.yaml: (path): got no such file or folder" in capsys.readouterr().err
     assert main(["rates", str(DATA / "tiny.yaml"), "--from", "2028", "--to", "2026", "--quiet"]) == 2
-    assert "--from 2028 is after --to 2026; expected a first start year <= the last." in capsys.readouterr().err
+    assert (
+        "--from 2028 is after --to 2026; expected a first start year <= the last." in capsys.readouterr().err
+    )
     assert main(["rates", str(DATA / "tiny.yaml"), "--step", "0", "--quiet"]) == 2
     assert "--step 0: expected a whole number of years >= 1." in capsys.readouterr().err
     (tmp_path / "empty").mkdir()
@@ -56,10 +61,14 @@ def test_rates_error_paths_raise_one_sentence_errors(tiny_run, tmp_path):
     from pathcast.errors import ScenarioError
     from pathcast.results.budget import budget_terms
 
-    with pytest.raises(ScenarioError, match=r"missing\.yaml: \(path\): got no such file or folder; expected a scenario YAML"):
+    with pytest.raises(
+        ScenarioError, match=r"missing\.yaml: \(path\): got no such file or folder; expected a scenario YAML"
+    ):
         load_result(tmp_path / "missing.yaml")
     terms = budget_terms(tiny_run.result)
     with pytest.raises(ScenarioError, match=r"--step 0: expected a whole number of years >= 1\."):
         start_years_from(tiny_run.result, terms, None, None, 0)
-    with pytest.raises(ScenarioError, match=r"--from 2028 is after --to 2026; expected a first start year <= the last\."):
+    with pytest.raises(
+        ScenarioError, match=r"--from 2028 is after --to 2026; expected a first start year <= the last\."
+    ):
         start_years_from(tiny_run.result, terms, 2028, 2026, 1)

@@ -62,7 +62,9 @@ def test_linear_end_year_is_the_discrete_sum():
     assert required_linear_end_year(2030, e0, budget) == pytest.approx(2030 + n)
     assert sum(e0 * (1 - t / n) for t in range(0, n + 1)) == pytest.approx(budget)
     budget_not_counted = sum(e0 * (1 - t / n) for t in range(1, n + 1))
-    assert required_linear_end_year(2030, e0, budget_not_counted, count_start_year=False) == pytest.approx(2030 + n)
+    assert required_linear_end_year(2030, e0, budget_not_counted, count_start_year=False) == pytest.approx(
+        2030 + n
+    )
     assert required_linear_end_year(2030, 0.0, 1.0) == 2030.0
 
 
@@ -76,7 +78,9 @@ def test_unep_2019_seven_point_six_percent_from_its_own_endpoints():
     rate = compound_reduction_rate(55.3, 25.0, 10)
     assert round(100 * rate, 1) == 7.6
     endpoints = pd.DataFrame({"year": [2020, 2030], "emissions_mtco2": [55_300.0, 25_000.0]})
-    result = RunResult.create("unep_2019", {"emissions_total": endpoints}, {"base_year": 2020, "final_year": 2030}, {}, {})
+    result = RunResult.create(
+        "unep_2019", {"emissions_total": endpoints}, {"base_year": 2020, "final_year": 2030}, {}, {}
+    )
     yearly, periods = realised_rates(result)
     assert periods[["period_start", "period_end"]].values.tolist() == [[2020, 2030]]
     assert round(100 * periods["compound_rate_per_year"].iloc[0], 1) == 7.6
@@ -89,8 +93,13 @@ def test_required_rates_table_uses_the_scenarios_own_emissions(tiny_run):
     result = tiny_run.result
     e = result.emissions_total["emissions_mtco2"].to_numpy()
     table = required_rates_table(result, [2025, 2027])
-    assert list(table.columns[:5]) == ["start_year", "emissions_at_start_mtco2", "remaining_budget_mtco2",
-                                       "exponential_rate_per_year", "linear_end_year"]
+    assert list(table.columns[:5]) == [
+        "start_year",
+        "emissions_at_start_mtco2",
+        "remaining_budget_mtco2",
+        "exponential_rate_per_year",
+        "linear_end_year",
+    ]
     later = table.set_index("start_year").loc[2027]
     assert later["remaining_budget_mtco2"] == pytest.approx(25.0 - e[0] - e[1])
     assert later["emissions_at_start_mtco2"] == pytest.approx(e[2])
@@ -100,7 +109,9 @@ def test_required_rates_table_uses_the_scenarios_own_emissions(tiny_run):
     assert required_rates_table(result)["start_year"].tolist() == [2025]
     # a budget used up before a start year marks it exhausted instead of failing
     small = required_rates_table(result, [2025, 2028], budget_mt=9.0)
-    assert small["budget_exhausted"].tolist() == [False, True] and math.isnan(small["exponential_rate_per_year"].iloc[1])
+    assert small["budget_exhausted"].tolist() == [False, True] and math.isnan(
+        small["exponential_rate_per_year"].iloc[1]
+    )
 
 
 def test_realised_rates_of_a_run(tiny_run):
@@ -108,7 +119,10 @@ def test_realised_rates_of_a_run(tiny_run):
     e = tiny_run.result.emissions_total["emissions_mtco2"].to_numpy()
     assert yearly["reduction_rate"].iloc[1] == pytest.approx(1 - e[1] / e[0])
     assert yearly["reduction_mtco2"].iloc[1] == pytest.approx(e[0] - e[1])
-    assert periods.iloc[0][["period_start", "period_end"]].tolist() == [2025, 2029]  # horizon shorter than a decade
+    assert periods.iloc[0][["period_start", "period_end"]].tolist() == [
+        2025,
+        2029,
+    ]  # horizon shorter than a decade
     assert periods["compound_rate_per_year"].iloc[0] == pytest.approx(1 - (e[4] / e[0]) ** 0.25)
 
 
@@ -117,11 +131,15 @@ def test_error_paths():
         required_rate_exponential(5.0, -1.0)
     with pytest.raises(BudgetExhaustedError, match=r"the remaining budget is 0 MtCO2, so it is exhausted"):
         required_linear_end_year(2030, 5.0, 0.0)
-    with pytest.raises(BudgetExhaustedError, match=r"the start year alone emits 5 MtCO2, more than the remaining budget of 4"):
+    with pytest.raises(
+        BudgetExhaustedError, match=r"the start year alone emits 5 MtCO2, more than the remaining budget of 4"
+    ):
         required_rate_exponential(5.0, 4.0)
     with pytest.raises(BudgetExhaustedError, match=r"the start year alone emits 5 MtCO2"):
         required_linear_end_year(2030, 5.0, 4.0)
-    with pytest.raises(RateDomainError, match=r"start emissions -1\.0 MtCO2/yr: expected a finite value >= 0"):
+    with pytest.raises(
+        RateDomainError, match=r"start emissions -1\.0 MtCO2/yr: expected a finite value >= 0"
+    ):
         required_rate_exponential(-1.0, 10.0)
     with pytest.raises(RateDomainError, match=r"remaining budget nan MtCO2: expected a finite value"):
         required_rate_exponential(1.0, math.nan)
@@ -133,10 +151,16 @@ def test_error_paths():
 
 def test_table_error_paths(tiny_run):
     no_budget = solve_inputs(replace(tiny_run.model.inputs, budget_mt=None, budget_years=None)).result
-    with pytest.raises(ScenarioError, match=r"result 'tiny': summary carbon_budget_mtco2 is None; expected a run with a carbon budget"):
+    with pytest.raises(
+        ScenarioError,
+        match=r"result 'tiny': summary carbon_budget_mtco2 is None; expected a run with a carbon budget",
+    ):
         required_rates_table(no_budget)
     assert required_rates_table(no_budget, budget_mt=30.0)["remaining_budget_mtco2"].iloc[0] == 30.0
-    with pytest.raises(ScenarioError, match=r"start year 2040 is not a modelled year of 'tiny'; expected a year from 2025 to 2029"):
+    with pytest.raises(
+        ScenarioError,
+        match=r"start year 2040 is not a modelled year of 'tiny'; expected a year from 2025 to 2029",
+    ):
         required_rates_table(tiny_run.result, [2040])
     shifted = replace(tiny_run.result, summary=dict(tiny_run.result.summary, budget_first_year=2027))
     with pytest.raises(ScenarioError, match=r"start year 2025 lies outside the budget period 2027-2029"):

@@ -11,7 +11,11 @@ DEMO = Path(__file__).parents[2] / "scenarios" / "demo" / "reference.yaml"
 # IPCC (2006), 2006 IPCC Guidelines for National Greenhouse Gas Inventories, Vol. 2 Energy, Ch. 1, Table 1.4:
 # default CO2 emission factors for combustion, kg CO2/TJ on a net calorific basis (status "secondary" in
 # shared/references.md: read in a public copy that cites the table).
-IPCC_2006_TABLE_1_4_KG_PER_TJ = {"natural_gas": 56_100, "coal": 94_600, "diesel": 74_100}  # coal = other bituminous
+IPCC_2006_TABLE_1_4_KG_PER_TJ = {
+    "natural_gas": 56_100,
+    "coal": 94_600,
+    "diesel": 74_100,
+}  # coal = other bituminous
 
 
 @pytest.mark.parametrize(("fuel", "kg_per_tj"), IPCC_2006_TABLE_1_4_KG_PER_TJ.items())

@@ -17,7 +17,12 @@ def test_exponent_for_twenty_percent():
 @given(st.floats(0.01, 0.5), st.floats(1.0, 1e5), st.floats(1e-3, 1e4))
 def test_one_doubling_cuts_cost_by_exactly_the_learning_rate(rate, base_cost, base_cumulative):
     # Wright (1936): cost falls by the learning rate at each doubling of cumulative production
-    cost = wright_cost(base_cost, np.array([base_cumulative, 2 * base_cumulative, 4 * base_cumulative]), base_cumulative, rate)
+    cost = wright_cost(
+        base_cost,
+        np.array([base_cumulative, 2 * base_cumulative, 4 * base_cumulative]),
+        base_cumulative,
+        rate,
+    )
     assert cost[1] == pytest.approx(base_cost * (1 - rate), rel=1e-12)
     assert cost[2] == pytest.approx(base_cost * (1 - rate) ** 2, rel=1e-12)
 
@@ -33,4 +38,6 @@ def test_capex_path_decline_table_and_floor():
     years = np.arange(2025, 2028)
     assert capex_path(CapexPath(base=100, annual_decline=0.1), years).tolist() == pytest.approx([100, 90, 81])
     assert capex_path(CapexPath(table={2025: 100, 2027: 80}), years).tolist() == pytest.approx([100, 90, 80])
-    assert capex_path(CapexPath(base=100, annual_decline=0.5, floor=30), years).tolist() == pytest.approx([100, 50, 30])
+    assert capex_path(CapexPath(base=100, annual_decline=0.5, floor=30), years).tolist() == pytest.approx(
+        [100, 50, 30]
+    )

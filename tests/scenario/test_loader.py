@@ -20,7 +20,10 @@ def test_variant_overrides_only_what_it_names():
     assert variant.technologies.generators["gas_combined_cycle"].phase_out_year == 2045
     assert base.technologies.generators["gas_combined_cycle"].phase_out_year is None
     # untouched fields come from the parents
-    assert variant.technologies.generators["gas_combined_cycle"].efficiency == base.technologies.generators["gas_combined_cycle"].efficiency
+    assert (
+        variant.technologies.generators["gas_combined_cycle"].efficiency
+        == base.technologies.generators["gas_combined_cycle"].efficiency
+    )
     assert variant.policy.carbon_budget == base.policy.carbon_budget
     assert variant.metadata.name != base.metadata.name
 

@@ -29,12 +29,28 @@ from ..results.budget import budget_tolerance
 from ..scenario.inputs import ModelInputs
 from .variants import cap_unserved, emissions_only, without_budget
 
-__all__ = ["BindingLimit", "BudgetDiagnosis", "diagnose_budget", "minimum_budget_emissions", "binding_limits",
-           "confirm_limits", "RELAXATION_STEP", "RELAXATION_AT_ZERO", "CONFIRM_AT_MOST",
-           "explain", "raise_if_not_achievable", "UNSERVED_TOLERANCE", "extra_unserved"]
+__all__ = [
+    "BindingLimit",
+    "BudgetDiagnosis",
+    "diagnose_budget",
+    "minimum_budget_emissions",
+    "binding_limits",
+    "confirm_limits",
+    "RELAXATION_STEP",
+    "RELAXATION_AT_ZERO",
+    "CONFIRM_AT_MOST",
+    "explain",
+    "raise_if_not_achievable",
+    "UNSERVED_TOLERANCE",
+    "extra_unserved",
+]
 
-UNSERVED_TOLERANCE = 1e-6  # [TWh] and [PJ]: unserved energy beyond the no-budget case that still counts as none
-RELAXATION_STEP = 0.05  # a binding limit is confirmed by relaxing it by 5 % of its value (common practice, no source)
+UNSERVED_TOLERANCE = (
+    1e-6  # [TWh] and [PJ]: unserved energy beyond the no-budget case that still counts as none
+)
+RELAXATION_STEP = (
+    0.05  # a binding limit is confirmed by relaxing it by 5 % of its value (common practice, no source)
+)
 RELAXATION_AT_ZERO = {"GW": 0.1, "PJ/yr": 1.0, "share": 0.01}  # steps where a limit is zero [GW, PJ/yr, -]
 CONFIRM_AT_MOST = 8  # candidates re-solved, largest reduced cost first
 _MARGINAL_TOLERANCE = 1e-7  # [MtCO2 per unit of a bound]: smaller reduced costs are solver noise
@@ -102,11 +118,17 @@ class BudgetDiagnosis:
 
     def as_dict(self) -> dict:
         return {
-            "scenario": self.scenario, "requested_budget_mtco2": self.requested_mtco2, "first_year": self.first_year,
-            "last_year": self.last_year, "achievable": self.achievable, "infeasible_in_solver": self.infeasible_in_solver,
+            "scenario": self.scenario,
+            "requested_budget_mtco2": self.requested_mtco2,
+            "first_year": self.first_year,
+            "last_year": self.last_year,
+            "achievable": self.achievable,
+            "infeasible_in_solver": self.infeasible_in_solver,
             "extra_unserved_electricity_twh": self.extra_unserved_electricity_twh,
             "extra_unserved_fuel_pj": self.extra_unserved_fuel_pj,
-            "tightest_feasible_budget_mtco2": None if math.isnan(self.tightest_budget_mtco2) else self.tightest_budget_mtco2,
+            "tightest_feasible_budget_mtco2": None
+            if math.isnan(self.tightest_budget_mtco2)
+            else self.tightest_budget_mtco2,
             "shortfall_mtco2": None if math.isnan(self.tightest_budget_mtco2) else self.shortfall_mtco2,
             "binding_limits": [b.describe() for b in self.binding],
         }
@@ -125,8 +147,10 @@ def _span(years: tuple[int, ...]) -> str:
 def extra_unserved(run: Run, reference: Run) -> tuple[float, float]:
     """Unserved electricity [TWh] and fuel [PJ] of ``run`` beyond ``reference`` (>= 0)."""
     s, r = run.result.summary, reference.result.summary
-    return (max(0.0, float(s["unserved_electricity_twh"]) - float(r["unserved_electricity_twh"])),
-            max(0.0, float(s["unserved_fuel_pj"]) - float(r["unserved_fuel_pj"])))
+    return (
+        max(0.0, float(s["unserved_electricity_twh"]) - float(r["unserved_electricity_twh"])),
+        max(0.0, float(s["unserved_fuel_pj"]) - float(r["unserved_fuel_pj"])),
+    )
 
 
 def _solve(inputs: ModelInputs, solver: dict | None) -> Run | None:
@@ -148,14 +172,18 @@ def binding_limits(run: Run, *, top: int | None = None) -> tuple[BindingLimit, .
     lp, inputs, ctx = model.lp, model.inputs, model.context
     matrix, _, _ = lp.matrix()
     x = solution.x
-    reduced = lp.cost_vector() - matrix.T @ solution.row_dual  # [objective units per column unit] = MtCO2 per unit
+    reduced = (
+        lp.cost_vector() - matrix.T @ solution.row_dual
+    )  # [objective units per column unit] = MtCO2 per unit
     lower, upper = lp.column_bounds()
     years = inputs.years.tolist()
     scale = np.maximum(1.0, np.abs(x))
     found: dict[tuple[str, str], dict] = {}
 
     def note(kind: str, name: str, year: int | None, bound: float | None, unit: str, marginal: float) -> None:
-        entry = found.setdefault((kind, name), {"years": set(), "bound": bound, "unit": unit, "marginal": 0.0})
+        entry = found.setdefault(
+            (kind, name), {"years": set(), "bound": bound, "unit": unit, "marginal": 0.0}
+        )
         if year is not None:
             entry["years"].add(int(year))
         entry["marginal"] += float(marginal)
@@ -166,8 +194,14 @@ def binding_limits(run: Run, *, top: int | None = None) -> tuple[BindingLimit, .
         if cols.size == 0:
             continue
         d = reduced[cols]
-        at_upper = np.isfinite(upper[cols]) & (x[cols] >= upper[cols] - 1e-7 * scale[cols]) & (d < -_MARGINAL_TOLERANCE)
-        at_lower = (x[cols] <= lower[cols] + 1e-7 * scale[cols]) & (lower[cols] > 0) & (d > _MARGINAL_TOLERANCE)
+        at_upper = (
+            np.isfinite(upper[cols])
+            & (x[cols] >= upper[cols] - 1e-7 * scale[cols])
+            & (d < -_MARGINAL_TOLERANCE)
+        )
+        at_lower = (
+            (x[cols] <= lower[cols] + 1e-7 * scale[cols]) & (lower[cols] > 0) & (d > _MARGINAL_TOLERANCE)
+        )
         given = fixed.get(block_name)
         pinned = np.zeros(cols.shape, dtype=bool)
         if given is not None:
@@ -175,24 +209,46 @@ def binding_limits(run: Run, *, top: int | None = None) -> tuple[BindingLimit, .
         for index in zip(*np.nonzero(at_upper | at_lower), strict=True):
             marginal = abs(float(d[index]))
             bound = float(upper[cols][index]) if at_upper[index] else float(lower[cols][index])
-            kind, name, year, shown, unit = _classify(block_name, block, index, bound, bool(at_upper[index]),
-                                                      bool(pinned[index]), ctx, inputs, years)
+            kind, name, year, shown, unit = _classify(
+                block_name,
+                block,
+                index,
+                bound,
+                bool(at_upper[index]),
+                bool(pinned[index]),
+                ctx,
+                inputs,
+                years,
+            )
             if kind is not None:
                 note(kind, name, year, shown, unit, marginal)
 
     offsets = lp.row_offsets()
-    for row_name, kind in (("reserve_margin", "reserve margin"), ("clean_electricity_share", "clean-electricity share"),
-                           ("storage_duration_max", "storage duration"), ("storage_duration_min", "storage duration")):
+    for row_name, kind in (
+        ("reserve_margin", "reserve margin"),
+        ("clean_electricity_share", "clean-electricity share"),
+        ("storage_duration_max", "storage duration"),
+        ("storage_duration_min", "storage duration"),
+    ):
         block = lp.row_blocks.get(row_name)
         if block is None or block.size == 0:
             continue
-        dual = solution.row_dual[offsets[row_name]:offsets[row_name] + block.size]
+        dual = solution.row_dual[offsets[row_name] : offsets[row_name] + block.size]
         for i in np.flatnonzero(np.abs(dual) > _MARGINAL_TOLERANCE):
             year = years[i % len(years)] if block.size % len(years) == 0 else None
             note(kind, row_name.replace("_", " "), year, None, "", abs(float(dual[i])))
 
-    limits = [BindingLimit(kind=k, name=n, years=tuple(sorted(v["years"])), bound=v["bound"], unit=v["unit"],
-                           marginal_mtco2_per_unit=v["marginal"]) for (k, n), v in found.items()]
+    limits = [
+        BindingLimit(
+            kind=k,
+            name=n,
+            years=tuple(sorted(v["years"])),
+            bound=v["bound"],
+            unit=v["unit"],
+            marginal_mtco2_per_unit=v["marginal"],
+        )
+        for (k, n), v in found.items()
+    ]
     # largest marginal first; the cap on unserved energy (binding by construction) last
     limits.sort(key=lambda b: (b.kind == "no extra unserved energy", -b.marginal_mtco2_per_unit))
     return tuple(limits[:top] if top else limits)
@@ -201,10 +257,18 @@ def binding_limits(run: Run, *, top: int | None = None) -> tuple[BindingLimit, .
 def _classify(block_name, block, index, bound, at_upper, pinned, ctx, inputs, years):
     """(kind, name, year, bound shown, unit) of a column at a bound, or kind None for columns that are no limit."""
     if block_name in ("unserved", "unserved_fuel"):
-        year = years[index[0]] if block_name == "unserved" else years[index[1]]  # [year, day, hour] or [demand, year]
+        year = (
+            years[index[0]] if block_name == "unserved" else years[index[1]]
+        )  # [year, day, hour] or [demand, year]
         return "no extra unserved energy", "no more unserved energy than without the budget", year, None, ""
     if pinned:
-        return "fixed history", "builds, capacity and emissions fixed to the reference pathway before the start year", years[index[-1]], None, ""
+        return (
+            "fixed history",
+            "builds, capacity and emissions fixed to the reference pathway before the start year",
+            years[index[-1]],
+            None,
+            "",
+        )
     if block_name in ("new", "capacity", "energy_new", "energy_capacity"):
         techs = ctx.capacity_techs if block_name in ("new", "capacity") else ctx.storage
         tech = techs[index[0]]
@@ -244,7 +308,9 @@ def _relaxed(inputs: ModelInputs, limit: BindingLimit) -> tuple[ModelInputs, str
         elif limit.kind in ("potential", "phase-out"):
             changed = replace(t, max_total_gw=up(t.max_total_gw, RELAXATION_AT_ZERO["GW"]))
         else:
-            changed = replace(t, min_build_gw=np.where(mask, (1 - RELAXATION_STEP) * t.min_build_gw, t.min_build_gw))
+            changed = replace(
+                t, min_build_gw=np.where(mask, (1 - RELAXATION_STEP) * t.min_build_gw, t.min_build_gw)
+            )
             step_text = f"-{100 * RELAXATION_STEP:.0f} %"
         if limit.kind in ("no new builds", "phase-out"):
             step_text = f"+{1000 * RELAXATION_AT_ZERO['GW']:,.0f} MW"
@@ -254,11 +320,15 @@ def _relaxed(inputs: ModelInputs, limit: BindingLimit) -> tuple[ModelInputs, str
     if limit.kind == "supply potential":
         supplies = list(inputs.supplies)
         i = next(k for k, sup in enumerate(supplies) if sup.name == limit.name)
-        supplies[i] = replace(supplies[i], potential_pj=up(supplies[i].potential_pj, RELAXATION_AT_ZERO["PJ/yr"]))
+        supplies[i] = replace(
+            supplies[i], potential_pj=up(supplies[i].potential_pj, RELAXATION_AT_ZERO["PJ/yr"])
+        )
         return replace(inputs, supplies=tuple(supplies)), step_text
     if limit.kind == "reserve margin" and inputs.reserve_margin > 0:
         step = RELAXATION_AT_ZERO["share"]
-        return replace(inputs, reserve_margin=max(0.0, inputs.reserve_margin - step)), f"-{100 * step:.0f} points"
+        return replace(
+            inputs, reserve_margin=max(0.0, inputs.reserve_margin - step)
+        ), f"-{100 * step:.0f} points"
     if limit.kind == "clean-electricity share" and inputs.clean_share is not None:
         step = RELAXATION_AT_ZERO["share"]
         share = np.where(mask, np.maximum(inputs.clean_share - step, 0.0), inputs.clean_share)
@@ -266,8 +336,15 @@ def _relaxed(inputs: ModelInputs, limit: BindingLimit) -> tuple[ModelInputs, str
     return None
 
 
-def confirm_limits(inputs: ModelInputs, no_budget_run: Run, minimum_mt: float, candidates: tuple[BindingLimit, ...],
-                   *, solver: dict | None = None, at_most: int = CONFIRM_AT_MOST) -> tuple[BindingLimit, ...]:
+def confirm_limits(
+    inputs: ModelInputs,
+    no_budget_run: Run,
+    minimum_mt: float,
+    candidates: tuple[BindingLimit, ...],
+    *,
+    solver: dict | None = None,
+    at_most: int = CONFIRM_AT_MOST,
+) -> tuple[BindingLimit, ...]:
     """Keep the candidate limits whose relaxation (:func:`_relaxed`) lowers the minimum cumulative emissions
     ``minimum_mt`` [MtCO2] by more than the solver's tolerance; ranked by that cut. Limits that bind by construction
     (fixed history, the cap on unserved energy) are kept without a re-solve, listed after the confirmed ones."""
@@ -285,7 +362,9 @@ def confirm_limits(inputs: ModelInputs, no_budget_run: Run, minimum_mt: float, c
         tried += 1
         relaxed_inputs, text = variant
         try:
-            lower = float(minimum_budget_emissions(relaxed_inputs, no_budget_run, solver=solver).solution.objective)
+            lower = float(
+                minimum_budget_emissions(relaxed_inputs, no_budget_run, solver=solver).solution.objective
+            )
         except InfeasibleError:  # pragma: no cover - relaxing a limit cannot make the LP infeasible
             continue
         if minimum_mt - lower > tolerance:
@@ -295,9 +374,15 @@ def confirm_limits(inputs: ModelInputs, no_budget_run: Run, minimum_mt: float, c
     return tuple(confirmed + kept)
 
 
-def diagnose_budget(inputs: ModelInputs, *, budget_run: Run | None = None, budget_infeasible: bool = False,
-                    solver: dict | None = None, always_minimum: bool = False,
-                    progress: Progress | None = None) -> BudgetDiagnosis | None:
+def diagnose_budget(
+    inputs: ModelInputs,
+    *,
+    budget_run: Run | None = None,
+    budget_infeasible: bool = False,
+    solver: dict | None = None,
+    always_minimum: bool = False,
+    progress: Progress | None = None,
+) -> BudgetDiagnosis | None:
     """Diagnose ``inputs``' carbon budget (None when there is none). ``budget_run`` is the least-cost run under the
     budget when already solved, ``budget_infeasible`` says HiGHS found it infeasible; with neither it is solved here
     (an infeasible solve counts as not achievable). The minimum feasible budget is solved only when the budget is not
@@ -313,8 +398,10 @@ def diagnose_budget(inputs: ModelInputs, *, budget_run: Run | None = None, budge
         infeasible = budget_run is None
     no_budget_run = None
     extra_el = extra_fuel = 0.0
-    shed = budget_run is not None and (budget_run.result.summary["unserved_electricity_twh"] > UNSERVED_TOLERANCE
-                                       or budget_run.result.summary["unserved_fuel_pj"] > UNSERVED_TOLERANCE)
+    shed = budget_run is not None and (
+        budget_run.result.summary["unserved_electricity_twh"] > UNSERVED_TOLERANCE
+        or budget_run.result.summary["unserved_fuel_pj"] > UNSERVED_TOLERANCE
+    )
     if infeasible or shed or always_minimum:
         say("solving without the budget")
         no_budget_run = _solve(without_budget(inputs), solver)
@@ -322,7 +409,8 @@ def diagnose_budget(inputs: ModelInputs, *, budget_run: Run | None = None, budge
             raise InfeasibleError(
                 f"scenario {inputs.name!r} is infeasible even without its carbon budget: its other limits (caps, "
                 "clean-electricity share, minimum builds, phase-outs, fixed history) cannot all be met together.",
-                diagnosis={"scenario": inputs.name, "infeasible_without_budget": True})
+                diagnosis={"scenario": inputs.name, "infeasible_without_budget": True},
+            )
         if budget_run is not None:
             extra_el, extra_fuel = extra_unserved(budget_run, no_budget_run)
     achievable = not infeasible and extra_el <= UNSERVED_TOLERANCE and extra_fuel <= UNSERVED_TOLERANCE
@@ -334,11 +422,20 @@ def diagnose_budget(inputs: ModelInputs, *, budget_run: Run | None = None, budge
         candidates = binding_limits(minimum)
         say(f"confirming up to {CONFIRM_AT_MOST} of {len(candidates)} candidate binding limits by re-solving")
         binding = confirm_limits(inputs, no_budget_run, tightest, candidates, solver=solver)
-    return BudgetDiagnosis(scenario=inputs.name, requested_mtco2=float(inputs.budget_mt), first_year=int(first),
-                           last_year=int(last), achievable=achievable, infeasible_in_solver=infeasible,
-                           extra_unserved_electricity_twh=extra_el, extra_unserved_fuel_pj=extra_fuel,
-                           tightest_budget_mtco2=tightest, binding=binding, budget_run=budget_run,
-                           no_budget_run=no_budget_run)
+    return BudgetDiagnosis(
+        scenario=inputs.name,
+        requested_mtco2=float(inputs.budget_mt),
+        first_year=int(first),
+        last_year=int(last),
+        achievable=achievable,
+        infeasible_in_solver=infeasible,
+        extra_unserved_electricity_twh=extra_el,
+        extra_unserved_fuel_pj=extra_fuel,
+        tightest_budget_mtco2=tightest,
+        binding=binding,
+        budget_run=budget_run,
+        no_budget_run=no_budget_run,
+    )
 
 
 def explain(d: BudgetDiagnosis, *, limits_shown: int = 5) -> str:
@@ -359,8 +456,10 @@ def explain(d: BudgetDiagnosis, *, limits_shown: int = 5) -> str:
         return text
     shortfall = d.shortfall_mtco2
     if shortfall > budget_tolerance(d.requested_mtco2):
-        text += (f" Under the scenario's other limits the tightest feasible budget is {d.tightest_budget_mtco2:,.1f} "
-                 f"MtCO2, so the requested budget is {shortfall:,.1f} MtCO2 short.")
+        text += (
+            f" Under the scenario's other limits the tightest feasible budget is {d.tightest_budget_mtco2:,.1f} "
+            f"MtCO2, so the requested budget is {shortfall:,.1f} MtCO2 short."
+        )
         # the fixed history (a delayed start) first, then the confirmed limits by their effect; the cap on unserved
         # energy binds by definition and is not repeated here
         history = [b for b in d.binding if b.kind == "fixed history"]
@@ -369,12 +468,16 @@ def explain(d: BudgetDiagnosis, *, limits_shown: int = 5) -> str:
         if shown:
             more = f" and {len(others) - limits_shown} more" if len(others) > limits_shown else ""
             text += f" Binding limits: {'; '.join(shown)}{more}."
-        text += (" Relax those limits, ask for a larger budget, or price an overshoot with "
-                 "'pathcast run --allow-overshoot PRICE'.")
+        text += (
+            " Relax those limits, ask for a larger budget, or price an overshoot with "
+            "'pathcast run --allow-overshoot PRICE'."
+        )
     else:
-        text += (f" The budget itself could be met without extra shedding (the tightest feasible budget is "
-                 f"{d.tightest_budget_mtco2:,.1f} MtCO2), but at the scenario's value of lost load shedding is cheaper "
-                 "than the remaining abatement: raise metadata.value_of_lost_load or metadata.value_of_unserved_fuel.")
+        text += (
+            f" The budget itself could be met without extra shedding (the tightest feasible budget is "
+            f"{d.tightest_budget_mtco2:,.1f} MtCO2), but at the scenario's value of lost load shedding is cheaper "
+            "than the remaining abatement: raise metadata.value_of_lost_load or metadata.value_of_unserved_fuel."
+        )
     return text
 
 

@@ -44,10 +44,22 @@ __all__ = ["DelayCase", "DelayStudy", "delayed_action", "DELAY_COLUMNS"]
 Progress = Callable[[str], None]
 
 DELAY_COLUMNS = (
-    "start_year", "emissions_before_action_mtco2", "remaining_budget_mtco2", "required_rate_per_year",
-    "total_discounted_cost_million", "cost_increase_million", "cumulative_budget_period_mtco2",
-    "steepest_cut_pct_per_year", "steepest_cut_year", "steepest_cut_mtco2", "stranded_mw", "stranded_capex_million",
-    "carbon_price_at_start_per_tco2", "achievable", "tightest_budget_mtco2", "shortfall_mtco2",
+    "start_year",
+    "emissions_before_action_mtco2",
+    "remaining_budget_mtco2",
+    "required_rate_per_year",
+    "total_discounted_cost_million",
+    "cost_increase_million",
+    "cumulative_budget_period_mtco2",
+    "steepest_cut_pct_per_year",
+    "steepest_cut_year",
+    "steepest_cut_mtco2",
+    "stranded_mw",
+    "stranded_capex_million",
+    "carbon_price_at_start_per_tco2",
+    "achievable",
+    "tightest_budget_mtco2",
+    "shortfall_mtco2",
 )
 
 
@@ -78,23 +90,38 @@ class DelayStudy:
 
     def pathways(self) -> pd.DataFrame:
         """Yearly emissions [MtCO2/yr] and budget carbon price [currency/tCO2] of the reference and of each start."""
-        parts = [self.reference.result.emissions_total[["year", "emissions_mtco2"]].assign(start_year="reference",
-                                                                                          carbon_price_per_tco2=0.0)]
+        parts = [
+            self.reference.result.emissions_total[["year", "emissions_mtco2"]].assign(
+                start_year="reference", carbon_price_per_tco2=0.0
+            )
+        ]
         for case in self.cases:
             if case.run is None:
                 continue
             r = case.run.result
             frame = r.emissions_total[["year", "emissions_mtco2"]].merge(
-                r.carbon_price[["year", "carbon_price_per_tco2"]], on="year")
+                r.carbon_price[["year", "carbon_price_per_tco2"]], on="year"
+            )
             parts.append(frame.assign(start_year=str(case.start_year)))
-        return pd.concat(parts, ignore_index=True)[["start_year", "year", "emissions_mtco2", "carbon_price_per_tco2"]]
+        return pd.concat(parts, ignore_index=True)[
+            ["start_year", "year", "emissions_mtco2", "carbon_price_per_tco2"]
+        ]
 
     def stranded(self) -> pd.DataFrame:
         """Early retirements of every start year, with a start_year column."""
         parts = [c.stranded.assign(start_year=c.start_year) for c in self.cases if len(c.stranded)]
         if not parts:
-            return pd.DataFrame(columns=["start_year", "technology", "vintage", "year", "stranded_mw",
-                                         "remaining_life_years", "undepreciated_capex_million"])
+            return pd.DataFrame(
+                columns=[
+                    "start_year",
+                    "technology",
+                    "vintage",
+                    "year",
+                    "stranded_mw",
+                    "remaining_life_years",
+                    "undepreciated_capex_million",
+                ]
+            )
         frame = pd.concat(parts, ignore_index=True)
         return frame[["start_year"] + [c for c in frame.columns if c != "start_year"]]
 
@@ -108,8 +135,10 @@ def _check_starts(inputs: ModelInputs, start_years: Sequence[int]) -> list[int]:
         raise ScenarioError("--start: got no start year; expected one or more years, e.g. 2025,2030,2035.")
     for s in starts:
         if not first_model <= s <= latest:
-            raise ScenarioError(f"start year {s!r} of scenario {inputs.name!r}: expected a year from the base year "
-                                f"{first_model} to {latest} (the budget period {first}-{last} within the horizon).")
+            raise ScenarioError(
+                f"start year {s!r} of scenario {inputs.name!r}: expected a year from the base year "
+                f"{first_model} to {latest} (the budget period {first}-{last} within the horizon)."
+            )
     return starts
 
 
@@ -123,18 +152,34 @@ def _case(inputs: ModelInputs, reference: Run, start: int, solver: dict | None, 
 
 
 def stranded_capacity_empty() -> pd.DataFrame:
-    return pd.DataFrame(columns=["technology", "vintage", "year", "stranded_mw", "remaining_life_years",
-                                 "undepreciated_capex_million"])
+    return pd.DataFrame(
+        columns=[
+            "technology",
+            "vintage",
+            "year",
+            "stranded_mw",
+            "remaining_life_years",
+            "undepreciated_capex_million",
+        ]
+    )
 
 
-def delayed_action(inputs: ModelInputs, start_years: Sequence[int], *, solver: dict | None = None,
-                   progress: Progress | None = None) -> DelayStudy:
+def delayed_action(
+    inputs: ModelInputs,
+    start_years: Sequence[int],
+    *,
+    solver: dict | None = None,
+    progress: Progress | None = None,
+) -> DelayStudy:
     """Solve the delayed-action study of ``inputs`` (a scenario with a carbon budget) for each start year; see the
     module docstring."""
     say = progress or (lambda _m: None)
     if inputs.budget_mt is None:
-        raise ScenarioError(f"scenario {inputs.name!r}: policy.carbon_budget: got none; expected a carbon budget for "
-                            "the delayed-action study.", field="policy.carbon_budget")
+        raise ScenarioError(
+            f"scenario {inputs.name!r}: policy.carbon_budget: got none; expected a carbon budget for "
+            "the delayed-action study.",
+            field="policy.carbon_budget",
+        )
     starts = _check_starts(inputs, start_years)
     first, last = inputs.budget_years
     terms = BudgetTerms(float(inputs.budget_mt), int(first), int(last))
@@ -156,10 +201,15 @@ def delayed_action(inputs: ModelInputs, start_years: Sequence[int], *, solver: d
             rate = required_rate_exponential(e0, remaining, count_start_year=False)
         except BudgetExhaustedError:
             rate = math.nan
-        row = {"start_year": s, "emissions_before_action_mtco2": e0, "remaining_budget_mtco2": remaining,
-               "required_rate_per_year": rate, "achievable": case.diagnosis.achievable,
-               "tightest_budget_mtco2": case.diagnosis.tightest_budget_mtco2,
-               "shortfall_mtco2": case.diagnosis.shortfall_mtco2}
+        row = {
+            "start_year": s,
+            "emissions_before_action_mtco2": e0,
+            "remaining_budget_mtco2": remaining,
+            "required_rate_per_year": rate,
+            "achievable": case.diagnosis.achievable,
+            "tightest_budget_mtco2": case.diagnosis.tightest_budget_mtco2,
+            "shortfall_mtco2": case.diagnosis.shortfall_mtco2,
+        }
         if case.run is not None:
             r = case.run.result
             yearly, _ = realised_rates(r)
@@ -168,18 +218,31 @@ def delayed_action(inputs: ModelInputs, start_years: Sequence[int], *, solver: d
             price = r.carbon_price.set_index("year")["from_budget_per_tco2"]
             total = r.emissions_total
             inside = (total["year"] >= first) & (total["year"] <= last)
-            row.update({
-                "total_discounted_cost_million": float(r.summary["total_discounted_cost_million"]),
-                "cost_increase_million": float(r.summary["total_discounted_cost_million"]) - base_cost,
-                "cumulative_budget_period_mtco2": float(total.loc[inside, "emissions_mtco2"].sum()),
-                "steepest_cut_pct_per_year": 100.0 * float(steepest["reduction_rate"]) if steepest is not None else math.nan,
-                "steepest_cut_year": int(steepest["year"]) if steepest is not None else None,
-                "steepest_cut_mtco2": float(cuts["reduction_mtco2"].max()) if len(cuts) else math.nan,
-                "stranded_mw": float(case.stranded["stranded_mw"].sum()),
-                "stranded_capex_million": float(case.stranded["undepreciated_capex_million"].sum(min_count=0)),
-                "carbon_price_at_start_per_tco2": float(price.get(s, math.nan)),
-            })
+            row.update(
+                {
+                    "total_discounted_cost_million": float(r.summary["total_discounted_cost_million"]),
+                    "cost_increase_million": float(r.summary["total_discounted_cost_million"]) - base_cost,
+                    "cumulative_budget_period_mtco2": float(total.loc[inside, "emissions_mtco2"].sum()),
+                    "steepest_cut_pct_per_year": 100.0 * float(steepest["reduction_rate"])
+                    if steepest is not None
+                    else math.nan,
+                    "steepest_cut_year": int(steepest["year"]) if steepest is not None else None,
+                    "steepest_cut_mtco2": float(cuts["reduction_mtco2"].max()) if len(cuts) else math.nan,
+                    "stranded_mw": float(case.stranded["stranded_mw"].sum()),
+                    "stranded_capex_million": float(
+                        case.stranded["undepreciated_capex_million"].sum(min_count=0)
+                    ),
+                    "carbon_price_at_start_per_tco2": float(price.get(s, math.nan)),
+                }
+            )
         rows.append(row)
     table = pd.DataFrame(rows).reindex(columns=list(DELAY_COLUMNS))
-    return DelayStudy(scenario=inputs.name, currency=inputs.currency, terms=terms, reference=reference,
-                      immediate=immediate, cases=tuple(cases[s] for s in starts), table=table)
+    return DelayStudy(
+        scenario=inputs.name,
+        currency=inputs.currency,
+        terms=terms,
+        reference=reference,
+        immediate=immediate,
+        cases=tuple(cases[s] for s in starts),
+        table=table,
+    )

@@ -95,7 +95,18 @@ def stranded_capacity(result: RunResult, inputs: ModelInputs) -> pd.DataFrame:
                     remaining, value = (end - y if math.isfinite(end) else math.nan), math.nan
                 else:
                     remaining = build + t.lifetime - y
-                    value = increase * t.capex[build] * remaining_balance_fraction(rate, t.lifetime, remaining)
+                    value = (
+                        increase * t.capex[build] * remaining_balance_fraction(rate, t.lifetime, remaining)
+                    )
                 rows.append((t.name, label, int(years[y]), increase * 1000.0, remaining, value))
-    return pd.DataFrame(rows, columns=["technology", "vintage", "year", "stranded_mw", "remaining_life_years",
-                                       "undepreciated_capex_million"])
+    return pd.DataFrame(
+        rows,
+        columns=[
+            "technology",
+            "vintage",
+            "year",
+            "stranded_mw",
+            "remaining_life_years",
+            "undepreciated_capex_million",
+        ],
+    )

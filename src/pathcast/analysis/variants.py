@@ -12,8 +12,14 @@ from ..pipeline import Run
 from ..scenario.inputs import ModelInputs
 
 __all__ = [
-    "without_budget", "reference_inputs", "fix_history", "cap_unserved", "emissions_only", "merge_column_bounds",
-    "HISTORY_BLOCKS", "UNSERVED_BLOCKS",
+    "without_budget",
+    "reference_inputs",
+    "fix_history",
+    "cap_unserved",
+    "emissions_only",
+    "merge_column_bounds",
+    "HISTORY_BLOCKS",
+    "UNSERVED_BLOCKS",
 ]
 
 # variable blocks [technology, year] (or [year]) fixed to a solved pathway before the start year of a delayed action
@@ -88,13 +94,24 @@ def emissions_only(inputs: ModelInputs) -> ModelInputs:
     first, last = inputs.budget_years or (int(inputs.years[0]), int(inputs.years[-1]))
     inside = (inputs.years >= first) & (inputs.years <= last)
     techs = tuple(
-        replace(t, capex=np.zeros_like(t.capex), fixed_om=0.0, variable_om=0.0,
-                energy_capex=None if t.energy_capex is None else np.zeros_like(t.energy_capex), energy_fixed_om=0.0)
+        replace(
+            t,
+            capex=np.zeros_like(t.capex),
+            fixed_om=0.0,
+            variable_om=0.0,
+            energy_capex=None if t.energy_capex is None else np.zeros_like(t.energy_capex),
+            energy_fixed_om=0.0,
+        )
         for t in inputs.technologies
     )
     supplies = tuple(replace(s, price=np.zeros_like(s.price)) for s in inputs.supplies)
     # the values of lost load stay positive but negligible (1e-9 million per GWh or PJ), so the run summary can still
     # turn their cost back into energy; unserved energy is capped anyway
-    return replace(without_budget(inputs), technologies=techs, supplies=supplies, value_of_lost_load=NEGLIGIBLE_COST,
-                   value_of_unserved_fuel=NEGLIGIBLE_COST,
-                   carbon_price=np.where(inside, 1.0 / inputs.discount_factor, 0.0))
+    return replace(
+        without_budget(inputs),
+        technologies=techs,
+        supplies=supplies,
+        value_of_lost_load=NEGLIGIBLE_COST,
+        value_of_unserved_fuel=NEGLIGIBLE_COST,
+        carbon_price=np.where(inside, 1.0 / inputs.discount_factor, 0.0),
+    )

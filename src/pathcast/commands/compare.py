@@ -39,7 +39,9 @@ class Source:
     loaded: LoadedScenario | None = None
 
 
-def gather_results(paths: Sequence[str | Path], progress: Callable[[str], None] | None = None) -> list[Source]:
+def gather_results(
+    paths: Sequence[str | Path], progress: Callable[[str], None] | None = None
+) -> list[Source]:
     """Solve each scenario file and read each result folder, in the order given."""
     say = progress or (lambda _message: None)
     sources = []
@@ -52,8 +54,11 @@ def gather_results(paths: Sequence[str | Path], progress: Callable[[str], None] 
             loaded = load_scenario(path)
             sources.append(Source(run_scenario(loaded, progress=say).result, path, loaded))
         else:
-            raise ScenarioError(f"{path}: got no such file or folder; expected a scenario YAML file or a result folder "
-                                "written by 'pathcast run'.", file=str(path))
+            raise ScenarioError(
+                f"{path}: got no such file or folder; expected a scenario YAML file or a result folder "
+                "written by 'pathcast run'.",
+                file=str(path),
+            )
     return sources
 
 
@@ -63,10 +68,14 @@ def check_output_folder(folder: Path, marker: str, command: str) -> None:
     if not folder.exists():
         return
     if not folder.is_dir():
-        raise ScenarioError(f"--out: got {str(folder)!r}, which is a file; expected a folder for the {command} output.")
+        raise ScenarioError(
+            f"--out: got {str(folder)!r}, which is a file; expected a folder for the {command} output."
+        )
     if any(folder.iterdir()) and not (folder / marker).is_file():
-        raise ScenarioError(f"--out: got {str(folder)!r}, a folder with other files and no {marker}; expected a new or "
-                            f"empty folder or one written by 'pathcast {command}', because it is replaced as a whole.")
+        raise ScenarioError(
+            f"--out: got {str(folder)!r}, a folder with other files and no {marker}; expected a new or "
+            f"empty folder or one written by 'pathcast {command}', because it is replaced as a whole."
+        )
 
 
 def _plain(value: object) -> object:
@@ -79,28 +88,48 @@ def _plain(value: object) -> object:
 
 
 def comparison_json(table: pd.DataFrame) -> dict[str, dict[str, object]]:
-    return {str(column): {str(metric): _plain(value) for metric, value in table[column].items()} for column in table.columns}
+    return {
+        str(column): {str(metric): _plain(value) for metric, value in table[column].items()}
+        for column in table.columns
+    }
 
 
 def render_comparison(table: pd.DataFrame) -> str:
     """Plain-text rendering of the comparison table for the terminal (rounded; comparison.csv holds exact values)."""
     labels = [metric_label(str(m)) for m in table.index]
-    cells = [[format_value(v, str(m)) for v in row] for m, row in zip(table.index, table.itertuples(index=False), strict=True)]
+    cells = [
+        [format_value(v, str(m)) for v in row]
+        for m, row in zip(table.index, table.itertuples(index=False), strict=True)
+    ]
     first = max(len(label) for label in labels)
     widths = [max(len(str(c)), *(len(r[i]) for r in cells)) for i, c in enumerate(table.columns)]
-    lines = [" " * first + "  " + "  ".join(str(c).rjust(w) for c, w in zip(table.columns, widths, strict=True))]
+    lines = [
+        " " * first + "  " + "  ".join(str(c).rjust(w) for c, w in zip(table.columns, widths, strict=True))
+    ]
     for label, row in zip(labels, cells, strict=True):
-        lines.append(label.ljust(first) + "  " + "  ".join(c.rjust(w) for c, w in zip(row, widths, strict=True)))
+        lines.append(
+            label.ljust(first) + "  " + "  ".join(c.rjust(w) for c, w in zip(row, widths, strict=True))
+        )
     return "\n".join(lines)
 
 
 def add_arguments(parser: argparse.ArgumentParser) -> None:
-    parser.add_argument("inputs", nargs="+", metavar="FILE|RESULTDIR",
-                        help="scenario YAML files (solved now) or result folders of 'pathcast run'; the first is the "
-                             "reference for abatement costs")
-    parser.add_argument("--out", type=Path, default=Path("results") / "comparison",
-                        help="output folder for comparison.csv and the overlay charts (default: results/comparison)")
-    parser.add_argument("--json", action="store_true", help="print the table as JSON {scenario: {metric: value}}")
+    parser.add_argument(
+        "inputs",
+        nargs="+",
+        metavar="FILE|RESULTDIR",
+        help="scenario YAML files (solved now) or result folders of 'pathcast run'; the first is the "
+        "reference for abatement costs",
+    )
+    parser.add_argument(
+        "--out",
+        type=Path,
+        default=Path("results") / "comparison",
+        help="output folder for comparison.csv and the overlay charts (default: results/comparison)",
+    )
+    parser.add_argument(
+        "--json", action="store_true", help="print the table as JSON {scenario: {metric: value}}"
+    )
     parser.add_argument("--quiet", action="store_true", help="no progress messages")
 
 

@@ -25,16 +25,27 @@ def parse_years(text: str) -> list[int]:
     try:
         return [int(part) for part in text.split(",") if part.strip()]
     except ValueError:
-        raise ScenarioError(f"--start {text!r}: expected whole years separated by commas, e.g. 2025,2030,2035.") from None
+        raise ScenarioError(
+            f"--start {text!r}: expected whole years separated by commas, e.g. 2025,2030,2035."
+        ) from None
 
 
 def add_arguments(parser: argparse.ArgumentParser) -> None:
     parser.add_argument("file", help="scenario YAML file with a carbon budget")
-    parser.add_argument("--start", default=None, metavar="YEARS",
-                        help="start years of action, comma-separated (default: every 5 years from the base year inside "
-                        "the budget period)")
-    parser.add_argument("--out", type=Path, default=None, metavar="DIR",
-                        help="also write delay.csv, delay_pathways.csv, delay_stranded.csv and delay.json to DIR")
+    parser.add_argument(
+        "--start",
+        default=None,
+        metavar="YEARS",
+        help="start years of action, comma-separated (default: every 5 years from the base year inside "
+        "the budget period)",
+    )
+    parser.add_argument(
+        "--out",
+        type=Path,
+        default=None,
+        metavar="DIR",
+        help="also write delay.csv, delay_pathways.csv, delay_stranded.csv and delay.json to DIR",
+    )
     parser.add_argument("--json", action="store_true", help="print JSON instead of a text table")
     parser.add_argument("--quiet", action="store_true", help="no progress messages")
 
@@ -51,10 +62,13 @@ def render_json(study: DelayStudy) -> str:
     payload = {
         "scenario": study.scenario,
         "currency": study.currency,
-        "budget": {"budget_mtco2": study.terms.budget_mt, "first_year": study.terms.first_year,
-                   "last_year": study.terms.last_year},
+        "budget": {
+            "budget_mtco2": study.terms.budget_mt,
+            "first_year": study.terms.first_year,
+            "last_year": study.terms.last_year,
+        },
         "method": "reference pathway (no budget, caps or carbon price) fixed before each start year; least-cost under "
-                  "the budget from then on; stranded capex = remaining annuity of model-built vintages",
+        "the budget from then on; stranded capex = remaining annuity of model-built vintages",
         "table": [{k: _clean(v) for k, v in row.items()} for row in study.table.to_dict(orient="records")],
         "diagnoses": {str(c.start_year): c.diagnosis.as_dict() for c in study.cases},
     }
@@ -70,13 +84,25 @@ def _num(value, fmt: str, width: int) -> str:
 def render_text(study: DelayStudy) -> str:
     cur = study.currency
     t = study.terms
-    lines = [f"Delayed action, scenario {study.scenario!r}: budget {t.budget_mt:,.1f} MtCO2 for {t.first_year}-{t.last_year}",
-             "  the reference pathway (no budget, caps or carbon price) is followed until the start year, the least-cost",
-             "  pathway under the budget from then on", ""]
-    lines.append("  start  CO2 before remaining  required  discounted cost  vs immediate  steepest cut      stranded         carbon price")
-    lines.append(f"  year   MtCO2/yr  MtCO2     %/yr      million {cur:<8} million {cur:<4} %/yr   MtCO2 in  MW     million {cur:<4} {cur}/tCO2 at start")
+    lines = [
+        f"Delayed action, scenario {study.scenario!r}: budget {t.budget_mt:,.1f} MtCO2 for {t.first_year}-{t.last_year}",
+        "  the reference pathway (no budget, caps or carbon price) is followed until the start year, the least-cost",
+        "  pathway under the budget from then on",
+        "",
+    ]
+    lines.append(
+        "  start  CO2 before remaining  required  discounted cost  vs immediate  steepest cut      stranded         carbon price"
+    )
+    lines.append(
+        f"  year   MtCO2/yr  MtCO2     %/yr      million {cur:<8} million {cur:<4} %/yr   MtCO2 in  MW     million {cur:<4} {cur}/tCO2 at start"
+    )
     for row in study.table.to_dict(orient="records"):
-        year = "" if row["steepest_cut_year"] is None or (isinstance(row["steepest_cut_year"], float) and math.isnan(row["steepest_cut_year"])) else str(int(row["steepest_cut_year"]))
+        year = (
+            ""
+            if row["steepest_cut_year"] is None
+            or (isinstance(row["steepest_cut_year"], float) and math.isnan(row["steepest_cut_year"]))
+            else str(int(row["steepest_cut_year"]))
+        )
         rate = row["required_rate_per_year"]
         lines.append(
             f"  {row['start_year']:<5}{_num(row['emissions_before_action_mtco2'], ',.2f', 10)}"
@@ -85,10 +111,15 @@ def render_text(study: DelayStudy) -> str:
             f"{_num(row['steepest_cut_pct_per_year'], '.1f', 7)}{_num(row['steepest_cut_mtco2'], ',.2f', 7)}{year:>5}"
             f"{_num(row['stranded_mw'], ',.0f', 7)}{_num(row['stranded_capex_million'], ',.0f', 14)}"
             f"{_num(row['carbon_price_at_start_per_tco2'], ',.1f', 11)}"
-            + ("" if row["achievable"] else "   NOT ACHIEVABLE"))
-    lines.append("  (CO2 before: the reference's emissions in the year before the start; required: the constant exponential "
-                 "decline from that level that uses the remaining budget from the start year on;")
-    lines.append("   stranded capex: remaining annuity of model-built vintages retired early; the existing fleet's MW only)")
+            + ("" if row["achievable"] else "   NOT ACHIEVABLE")
+        )
+    lines.append(
+        "  (CO2 before: the reference's emissions in the year before the start; required: the constant exponential "
+        "decline from that level that uses the remaining budget from the start year on;"
+    )
+    lines.append(
+        "   stranded capex: remaining annuity of model-built vintages retired early; the existing fleet's MW only)"
+    )
     for case in study.cases:
         if not case.diagnosis.achievable:
             lines.append("")
@@ -118,7 +149,9 @@ def execute(args: argparse.Namespace) -> int:
         starts = parse_years(args.start)
     elif inputs.budget_years is not None:
         base, last = int(inputs.years[0]), min(inputs.budget_years[1], int(inputs.years[-1]))
-        starts = [y for y in range(base, last + 1, 5) if y >= inputs.budget_years[0]] or [max(base, inputs.budget_years[0])]
+        starts = [y for y in range(base, last + 1, 5) if y >= inputs.budget_years[0]] or [
+            max(base, inputs.budget_years[0])
+        ]
     else:
         starts = []
     study = delayed_action(inputs, starts, progress=progress)

@@ -50,8 +50,10 @@ def assumptions_of(source: Source) -> tuple[pd.DataFrame, str]:
         reason = f"its scenario file {scenario_file} has changed since the run"
     else:
         reason = f"its scenario file {scenario_file or '(not recorded)'} cannot be found"
-    note = (f"The assumptions of {result.scenario_name} are incomplete: {reason}, so only the assumptions recorded in "
-            f"the result folder {source.path} are shown.")
+    note = (
+        f"The assumptions of {result.scenario_name} are incomplete: {reason}, so only the assumptions recorded in "
+        f"the result folder {source.path} are shown."
+    )
     return metadata_assumptions(result.metadata, result.summary), note
 
 
@@ -76,15 +78,20 @@ def split_inputs(paths: list[str | Path]) -> tuple[list[Path], list[Path]]:
             elif (path / "summary.json").is_file():
                 runs.append(path)
             else:
-                raise ScenarioError(f"{path}: got a folder with neither summary.json nor ensemble.json; expected a "
-                                    "result folder written by 'pathcast run' or an ensemble folder written by "
-                                    "'pathcast ensemble'.", file=str(path))
+                raise ScenarioError(
+                    f"{path}: got a folder with neither summary.json nor ensemble.json; expected a "
+                    "result folder written by 'pathcast run' or an ensemble folder written by "
+                    "'pathcast ensemble'.",
+                    file=str(path),
+                )
         elif path.is_file():
             runs.append(path)
         else:
-            raise ScenarioError(f"{path}: got no such file or folder; expected a scenario YAML file, a result folder "
-                                "written by 'pathcast run' or an ensemble folder written by 'pathcast ensemble'.",
-                                file=str(path))
+            raise ScenarioError(
+                f"{path}: got no such file or folder; expected a scenario YAML file, a result folder "
+                "written by 'pathcast run' or an ensemble folder written by 'pathcast ensemble'.",
+                file=str(path),
+            )
     return runs, ensembles
 
 
@@ -117,28 +124,52 @@ def read_ensemble(folder: Path) -> MemoEnsemble:
     probability = stats.get("probability_within_budget")
     figures = {p.stem: p for p in sorted((folder / "figures").glob("*.png"))}
     return MemoEnsemble(
-        folder=folder, name=str(design["name"]), section=section, base=str(design.get("base", "")),
-        base_hash=str(design.get("base_hash", "")), file=str(design.get("file", "")), design=str(design["design"]),
-        inputs=tuple(design.get("inputs", {})), members=int(stats["members"]), solved=int(stats["solved"]),
-        infeasible=int(stats["infeasible"]), failed_other=int(stats["failed_other"]), pending=int(stats["pending"]), within_budget=int(stats["within_budget"]),
+        folder=folder,
+        name=str(design["name"]),
+        section=section,
+        base=str(design.get("base", "")),
+        base_hash=str(design.get("base_hash", "")),
+        file=str(design.get("file", "")),
+        design=str(design["design"]),
+        inputs=tuple(design.get("inputs", {})),
+        members=int(stats["members"]),
+        solved=int(stats["solved"]),
+        infeasible=int(stats["infeasible"]),
+        failed_other=int(stats["failed_other"]),
+        pending=int(stats["pending"]),
+        within_budget=int(stats["within_budget"]),
         probability_within_budget=math.nan if probability is None else float(probability),
-        reference_budget_mt=stats.get("reference_budget_mt"), cost_p5=p5, cost_p50=p50, cost_p95=p95,
-        currency=summary.currency, price_year=summary.price_year, figure_files=figures,
+        reference_budget_mt=stats.get("reference_budget_mt"),
+        cost_p5=p5,
+        cost_p50=p50,
+        cost_p95=p95,
+        currency=summary.currency,
+        price_year=summary.price_year,
+        figure_files=figures,
         pathcast_version=str((design.get("versions") or {}).get("pathcast", "")),
-        illustrative=_base_illustrative(str(design.get("base", "")), str(design.get("base_hash", ""))))
+        illustrative=_base_illustrative(str(design.get("base", "")), str(design.get("base_hash", ""))),
+    )
 
 
 def add_arguments(parser: argparse.ArgumentParser) -> None:
-    parser.add_argument("inputs", nargs="+", metavar="FILE|RESULTDIR|ENSEMBLEDIR",
-                        help="scenario YAML files (solved now), result folders of 'pathcast run' or ensemble folders "
-                             "of 'pathcast ensemble'; the first scenario or result folder is the reference for "
-                             "abatement costs and assumption changes. Each ensemble folder adds a 'Robustness across "
-                             "an ensemble' section with its figures and a sentence to the findings; with ensemble "
-                             "folders only, the memo has their findings, robustness sections, the cautions and the "
-                             "provenance, but not the base scenario's pathway (give its file or result folder too)")
-    parser.add_argument("--out", type=Path, default=None,
-                        help="memo folder (default: results/<scenario>_memo, results/comparison_memo for several "
-                             "scenarios, results/<ensemble>_memo for one ensemble alone)")
+    parser.add_argument(
+        "inputs",
+        nargs="+",
+        metavar="FILE|RESULTDIR|ENSEMBLEDIR",
+        help="scenario YAML files (solved now), result folders of 'pathcast run' or ensemble folders "
+        "of 'pathcast ensemble'; the first scenario or result folder is the reference for "
+        "abatement costs and assumption changes. Each ensemble folder adds a 'Robustness across "
+        "an ensemble' section with its figures and a sentence to the findings; with ensemble "
+        "folders only, the memo has their findings, robustness sections, the cautions and the "
+        "provenance, but not the base scenario's pathway (give its file or result folder too)",
+    )
+    parser.add_argument(
+        "--out",
+        type=Path,
+        default=None,
+        help="memo folder (default: results/<scenario>_memo, results/comparison_memo for several "
+        "scenarios, results/<ensemble>_memo for one ensemble alone)",
+    )
     parser.add_argument("--quiet", action="store_true", help="no progress messages")
 
 

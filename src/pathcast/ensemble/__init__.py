@@ -23,5 +23,12 @@ from .runner import EnsembleRun, run_ensemble
 from .spec import EnsembleSpec, load_ensemble
 from .summary import EnsembleSummary, summarise_ensemble
 
-__all__ = ["load_ensemble", "EnsembleSpec", "run_ensemble", "EnsembleRun", "summarise_ensemble", "EnsembleSummary",
-           "ensemble_robustness_section"]
+__all__ = [
+    "load_ensemble",
+    "EnsembleSpec",
+    "run_ensemble",
+    "EnsembleRun",
+    "summarise_ensemble",
+    "EnsembleSummary",
+    "ensemble_robustness_section",
+]

@@ -28,7 +28,9 @@ def scale_value(value: Any, factor: float) -> Any:
 
 
 def overrides_for(spec: EnsembleSpec, samples: dict[str, Any]) -> tuple[Override, ...]:
-    return tuple((spec.paths[label], spec.file.inputs[label].apply, value) for label, value in samples.items())
+    return tuple(
+        (spec.paths[label], spec.file.inputs[label].apply, value) for label, value in samples.items()
+    )
 
 
 def apply_overrides(raw: dict[str, Any], overrides: tuple[Override, ...]) -> dict[str, Any]:

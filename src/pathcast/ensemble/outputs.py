@@ -15,7 +15,15 @@ from .summary import EnsembleSummary
 
 __all__ = ["write_ensemble_outputs", "TABLE_FILES"]
 
-TABLE_FILES = ("members", "yearly", "capacity", "yearly_percentiles", "headline_percentiles", "tornado", "correlations")
+TABLE_FILES = (
+    "members",
+    "yearly",
+    "capacity",
+    "yearly_percentiles",
+    "headline_percentiles",
+    "tornado",
+    "correlations",
+)
 
 
 def _parquet_ready(frame: pd.DataFrame) -> pd.DataFrame:
@@ -23,7 +31,11 @@ def _parquet_ready(frame: pd.DataFrame) -> pd.DataFrame:
     frame = frame.copy()
     for column in frame.columns:
         if frame[column].dtype == object:
-            kinds = {type(v) for v in frame[column] if v is not None and not (isinstance(v, float) and math.isnan(v))}
+            kinds = {
+                type(v)
+                for v in frame[column]
+                if v is not None and not (isinstance(v, float) and math.isnan(v))
+            }
             if len(kinds) > 1 and not kinds <= {int, float, bool}:
                 frame[column] = frame[column].map(lambda v: None if v is None else str(v))
     return frame
@@ -37,13 +49,20 @@ def _clean(value):
     return value
 
 
-def write_ensemble_outputs(summary: EnsembleSummary, folder: Path | str | None = None, *,
-                           figures: bool = True) -> list[Path]:
+def write_ensemble_outputs(
+    summary: EnsembleSummary, folder: Path | str | None = None, *, figures: bool = True
+) -> list[Path]:
     folder = Path(folder or summary.folder)
     written: list[Path] = []
-    frames = {"members": summary.members, "yearly": summary.yearly, "capacity": summary.capacity,
-              "yearly_percentiles": summary.yearly_percentiles, "headline_percentiles": summary.headline_percentiles,
-              "tornado": summary.tornado, "correlations": summary.correlations}
+    frames = {
+        "members": summary.members,
+        "yearly": summary.yearly,
+        "capacity": summary.capacity,
+        "yearly_percentiles": summary.yearly_percentiles,
+        "headline_percentiles": summary.headline_percentiles,
+        "tornado": summary.tornado,
+        "correlations": summary.correlations,
+    }
     with atomic_folder(folder / "tables") as tmp:
         for name, frame in frames.items():
             if frame is None:
@@ -59,12 +78,21 @@ def write_ensemble_outputs(summary: EnsembleSummary, folder: Path | str | None =
         written += sorted((folder / "figures").glob("*.png"))
     design = summary.design
     data = {
-        "name": design["name"], "design": design["design"], "base": design["base"], "base_hash": design["base_hash"],
-        "currency": design.get("currency"), "price_year": design.get("price_year"),
-        "inputs": {label: {k: info[k] for k in ("path", "as", "distribution")} for label, info in design["inputs"].items()},
+        "name": design["name"],
+        "design": design["design"],
+        "base": design["base"],
+        "base_hash": design["base_hash"],
+        "currency": design.get("currency"),
+        "price_year": design.get("price_year"),
+        "inputs": {
+            label: {k: info[k] for k in ("path", "as", "distribution")}
+            for label, info in design["inputs"].items()
+        },
         **_clean(summary.stats),
-        "headline_percentiles": {row["quantity"]: _clean({k: row[k] for k in ("p5", "p25", "p50", "p75", "p95", "mean")})
-                                 for row in summary.headline_percentiles.to_dict("records")},
+        "headline_percentiles": {
+            row["quantity"]: _clean({k: row[k] for k in ("p5", "p25", "p50", "p75", "p95", "mean")})
+            for row in summary.headline_percentiles.to_dict("records")
+        },
     }
     written.append(write_json_atomic(folder / "summary.json", data))
     return written

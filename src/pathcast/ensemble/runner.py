@@ -81,8 +81,10 @@ class ProgressBar:
         left = self.total - self.done
         eta = _duration(left / rate * 60.0) if rate > 0 and left else ("done" if not left else "?")
         earlier = f", {self.skipped} from earlier runs" if self.skipped else ""
-        return (f"ensemble {self.name}: {self.done}/{self.total} members{earlier}, {self.failed} failed | "
-                f"{rate:.1f} members/min | ETA {eta}")
+        return (
+            f"ensemble {self.name}: {self.done}/{self.total} members{earlier}, {self.failed} failed | "
+            f"{rate:.1f} members/min | ETA {eta}"
+        )
 
     def show(self, force: bool = False) -> None:
         if not self.enabled:
@@ -123,17 +125,35 @@ def write_design(spec: EnsembleSpec, members: list[Member], hashes: list[str], o
     meta = spec.base.scenario.metadata
     inputs = {}
     for label, item in f.inputs.items():
-        inputs[label] = {"path": item.path, "as": item.apply, "distribution": getattr(item, "distribution", "values"),
-                         "spec": item.model_dump(by_alias=True, exclude={"path", "apply", "distribution"}),
-                         "base_value": spec.base_values[label]}
+        inputs[label] = {
+            "path": item.path,
+            "as": item.apply,
+            "distribution": getattr(item, "distribution", "values"),
+            "spec": item.model_dump(by_alias=True, exclude={"path", "apply", "distribution"}),
+            "base_value": spec.base_values[label],
+        }
     data = {
-        "name": f.name, "description": f.description, "file": str(spec.path), "base": str(spec.base_path),
-        "base_hash": spec.base_hash, "design": f.design, "seed": f.seed, "members_count": len(members),
-        "grid_levels": f.grid_levels, "tornado_quantiles": list(f.tornado_quantiles), "warm_start": f.warm_start,
-        "reference_budget_mt": f.reference_budget_mt, "currency": meta.currency, "price_year": meta.price_year,
-        "scenario": meta.name, "inputs": inputs, "versions": package_versions(),
-        "members": [{"index": m.index, "role": m.role, "hash": h, "samples": m.samples}
-                    for m, h in zip(members, hashes, strict=True)],
+        "name": f.name,
+        "description": f.description,
+        "file": str(spec.path),
+        "base": str(spec.base_path),
+        "base_hash": spec.base_hash,
+        "design": f.design,
+        "seed": f.seed,
+        "members_count": len(members),
+        "grid_levels": f.grid_levels,
+        "tornado_quantiles": list(f.tornado_quantiles),
+        "warm_start": f.warm_start,
+        "reference_budget_mt": f.reference_budget_mt,
+        "currency": meta.currency,
+        "price_year": meta.price_year,
+        "scenario": meta.name,
+        "inputs": inputs,
+        "versions": package_versions(),
+        "members": [
+            {"index": m.index, "role": m.role, "hash": h, "samples": m.samples}
+            for m, h in zip(members, hashes, strict=True)
+        ],
     }
     return write_json_atomic(out / "ensemble.json", data)
 
@@ -165,16 +185,25 @@ class _Dask:
         try:
             from distributed import Client, LocalCluster
         except ImportError:  # pragma: no cover - the ensemble extra is missing
-            raise PathcastError("dask.distributed is not installed: install pathcast with the 'ensemble' extra "
-                                "(pip install 'pathcast[ensemble]') or run with --serial.") from None
+            raise PathcastError(
+                "dask.distributed is not installed: install pathcast with the 'ensemble' extra "
+                "(pip install 'pathcast[ensemble]') or run with --serial."
+            ) from None
         if self.client is None:
             if self.scheduler:
                 self.client = Client(self.scheduler)
             else:
-                with warnings.catch_warnings():  # another cluster holds the default HTTP port: a free one is taken
+                with (
+                    warnings.catch_warnings()
+                ):  # another cluster holds the default HTTP port: a free one is taken
                     warnings.filterwarnings("ignore", message="Port .* is already in use")
-                    self.cluster = LocalCluster(n_workers=self.requested, threads_per_worker=1, processes=True,
-                                                dashboard_address=None, silence_logs=logging.ERROR)
+                    self.cluster = LocalCluster(
+                        n_workers=self.requested,
+                        threads_per_worker=1,
+                        processes=True,
+                        dashboard_address=None,
+                        silence_logs=logging.ERROR,
+                    )
                 self.client = Client(self.cluster)
         self.workers = len(self.client.scheduler_info().get("workers", {})) or self.requested
         self.mode = f"scheduler {self.scheduler}" if self.scheduler else "local cluster"
@@ -195,16 +224,30 @@ class _Dask:
 
         shared = self.client.scatter(context, broadcast=True, hash=False)
         tag = uuid.uuid4().hex[:8]
-        futures = {self.client.submit(solve_member, task, shared, key=f"pathcast-member-{task.hash[:16]}-{tag}",
-                                      pure=False): task for task in tasks}
+        futures = {
+            self.client.submit(
+                solve_member, task, shared, key=f"pathcast-member-{task.hash[:16]}-{tag}", pure=False
+            ): task
+            for task in tasks
+        }
         try:
             for future in as_completed(futures):
                 task = futures.pop(future)
                 try:
                     record = future.result()
-                except Exception as error:  # the worker died or the task could not run: not the member's fault
-                    record = {"hash": task.hash, "samples": task.samples, "status": "failed",
-                              "error": {"type": type(error).__name__, "message": str(error), "deterministic": False}}
+                except (
+                    Exception
+                ) as error:  # the worker died or the task could not run: not the member's fault
+                    record = {
+                        "hash": task.hash,
+                        "samples": task.samples,
+                        "status": "failed",
+                        "error": {
+                            "type": type(error).__name__,
+                            "message": str(error),
+                            "deterministic": False,
+                        },
+                    }
                 future.release()
                 yield task, record
         finally:
@@ -212,11 +255,22 @@ class _Dask:
                 future.cancel()
 
 
-def run_ensemble(source: str | Path | EnsembleSpec, out: str | Path | None = None, *, workers: int | None = None,
-                 scheduler: str | None = None, serial: bool = False, limit: int | None = None,
-                 retry_failed: bool = False, progress: bool = True, stream=None, outputs: bool = True,
-                 figures: bool = True, client=None,
-                 on_record: Callable[[dict], None] | None = None) -> EnsembleRun:
+def run_ensemble(
+    source: str | Path | EnsembleSpec,
+    out: str | Path | None = None,
+    *,
+    workers: int | None = None,
+    scheduler: str | None = None,
+    serial: bool = False,
+    limit: int | None = None,
+    retry_failed: bool = False,
+    progress: bool = True,
+    stream=None,
+    outputs: bool = True,
+    figures: bool = True,
+    client=None,
+    on_record: Callable[[dict], None] | None = None,
+) -> EnsembleRun:
     """Run (or resume) an ensemble and write DIR/ensemble.json, DIR/members/*.json, DIR/tables, DIR/figures and
     DIR/summary.json. ``limit`` solves at most that many of the members still to do; ``client`` reuses a dask
     client."""
@@ -235,8 +289,14 @@ def run_ensemble(source: str | Path | EnsembleSpec, out: str | Path | None = Non
     run.skipped = len(tasks) - len(todo)
     warm = spec.file.warm_start
     base_loaded = spec.base
-    context = SharedContext(base_raw=spec.base_raw, base_path=str(spec.base_path), base_hash=spec.base_hash,
-                            provenance=dict(base_loaded.provenance), files=tuple(base_loaded.files), warm_start=warm)
+    context = SharedContext(
+        base_raw=spec.base_raw,
+        base_path=str(spec.base_path),
+        base_hash=spec.base_hash,
+        provenance=dict(base_loaded.provenance),
+        files=tuple(base_loaded.files),
+        warm_start=warm,
+    )
     if serial or not todo:
         executor = _Serial()
     else:
@@ -250,7 +310,9 @@ def run_ensemble(source: str | Path | EnsembleSpec, out: str | Path | None = Non
             if basis is None:
                 record, basis = executor.base(context)
                 run.reference_solves += 1
-                in_design = spec.base_hash in tasks and not store.done(spec.base_hash, retry_failed=retry_failed)
+                in_design = spec.base_hash in tasks and not store.done(
+                    spec.base_hash, retry_failed=retry_failed
+                )
                 store.put(record)
                 if basis is not None:
                     store.save_basis(spec.base_hash, basis)
@@ -260,10 +322,15 @@ def run_ensemble(source: str | Path | EnsembleSpec, out: str | Path | None = Non
                     run.failed_now += record["status"] != "solved"
                 todo = pending()
         if limit is not None:
-            todo = todo[:max(0, limit - run.attempted)]
-        bar = ProgressBar(spec.name, len(tasks), len(tasks) - len(pending()),
-                          sum(1 for h in tasks if (store.get(h) or {}).get("status") == "failed"),
-                          stream=stream, enabled=progress)
+            todo = todo[: max(0, limit - run.attempted)]
+        bar = ProgressBar(
+            spec.name,
+            len(tasks),
+            len(tasks) - len(pending()),
+            sum(1 for h in tasks if (store.get(h) or {}).get("status") == "failed"),
+            stream=stream,
+            enabled=progress,
+        )
         context = replace(context, basis=basis)
         for _task, record in executor.run(todo, context):
             store.put(record)

@@ -32,7 +32,9 @@ def frozen_distribution(item) -> Any | None:
     if isinstance(item, Uniform):
         return stats.uniform(loc=item.low, scale=item.high - item.low)
     if isinstance(item, Triangular):
-        return stats.triang(c=(item.mode - item.low) / (item.high - item.low), loc=item.low, scale=item.high - item.low)
+        return stats.triang(
+            c=(item.mode - item.low) / (item.high - item.low), loc=item.low, scale=item.high - item.low
+        )
     if isinstance(item, Normal):
         if item.low is None and item.high is None:
             return stats.norm(loc=item.mean, scale=item.sd)
@@ -46,8 +48,11 @@ def frozen_distribution(item) -> Any | None:
 
 def _discrete(item) -> tuple[list, np.ndarray]:
     values = list(item.values)
-    weights = np.asarray(item.probabilities, dtype=float) if isinstance(item, Choice) and item.probabilities else \
-        np.full(len(values), 1.0 / len(values))
+    weights = (
+        np.asarray(item.probabilities, dtype=float)
+        if isinstance(item, Choice) and item.probabilities
+        else np.full(len(values), 1.0 / len(values))
+    )
     return values, weights
 
 
@@ -99,11 +104,15 @@ def design_members(spec: EnsembleSpec) -> list[Member]:
     if f.design == "latin_hypercube":
         u = unit_hypercube(int(f.members), len(labels), int(f.seed))
         columns = {label: inverse_cdf(f.inputs[label], u[:, j]) for j, label in enumerate(labels)}
-        return [Member(i, "sample", {label: columns[label][i] for label in labels}) for i in range(int(f.members))]
+        return [
+            Member(i, "sample", {label: columns[label][i] for label in labels}) for i in range(int(f.members))
+        ]
     if f.design == "grid":
         levels = [_levels(f.inputs[label], f.grid_levels) for label in labels]
-        return [Member(i, "sample", dict(zip(labels, combo, strict=True)))
-                for i, combo in enumerate(itertools.product(*levels))]
+        return [
+            Member(i, "sample", dict(zip(labels, combo, strict=True)))
+            for i, combo in enumerate(itertools.product(*levels))
+        ]
     members = [Member(0, "base", {})]
     for label in labels:
         low, high = _low_high(f.inputs[label], tuple(f.tornado_quantiles))

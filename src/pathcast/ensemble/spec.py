@@ -69,7 +69,9 @@ DESIGNS = ("latin_hypercube", "grid", "one_at_a_time")
 DISTRIBUTIONS = ("uniform", "triangular", "normal", "lognormal", "choice")
 MAX_MEMBERS = 100_000  # a guard against a grid that multiplies out by accident; common practice, no source
 
-Level = int | float | str | dict[int, int | float | str]  # values in a list: numbers, quantities, {year: value} paths
+Level = (
+    int | float | str | dict[int, int | float | str]
+)  # values in a list: numbers, quantities, {year: value} paths
 
 
 class _Strict(BaseModel):
@@ -78,10 +80,13 @@ class _Strict(BaseModel):
 
 class _Input(_Strict):
     path: Annotated[str, StringConstraints(min_length=1, pattern=r"^[^.\s]+(\.[^.\s]+)*$")] = Field(
-        description="Dotted field path in the merged scenario, e.g. technologies.supplies.gas_import.price.")
+        description="Dotted field path in the merged scenario, e.g. technologies.supplies.gas_import.price."
+    )
     apply: Literal["multiplier", "absolute"] = Field(
-        alias="as", description="'multiplier': scale the base value (every value of a {year: value} path); "
-        "'absolute': replace it.")
+        alias="as",
+        description="'multiplier': scale the base value (every value of a {year: value} path); "
+        "'absolute': replace it.",
+    )
 
 
 class Uniform(_Input):
@@ -105,7 +110,9 @@ class Triangular(_Input):
     @model_validator(mode="after")
     def _order(self) -> Triangular:
         if not (self.low <= self.mode <= self.high and self.low < self.high):
-            raise ValueError(f"low <= mode <= high with low below high, not {self.low!r}, {self.mode!r}, {self.high!r}")
+            raise ValueError(
+                f"low <= mode <= high with low below high, not {self.low!r}, {self.mode!r}, {self.high!r}"
+            )
         return self
 
 
@@ -126,7 +133,9 @@ class Normal(_Input):
 class Lognormal(_Input):
     distribution: Literal["lognormal"]
     median: Annotated[float, Field(gt=0)]
-    sigma: Annotated[float, Field(gt=0)] = Field(description="Standard deviation of the natural logarithm [-].")
+    sigma: Annotated[float, Field(gt=0)] = Field(
+        description="Standard deviation of the natural logarithm [-]."
+    )
 
 
 class Choice(_Input):
@@ -138,7 +147,9 @@ class Choice(_Input):
     def _weights(self) -> Choice:
         if self.probabilities is not None:
             if len(self.probabilities) != len(self.values):
-                raise ValueError(f"one probability per value ({len(self.values)}), not {len(self.probabilities)}")
+                raise ValueError(
+                    f"one probability per value ({len(self.values)}), not {len(self.probabilities)}"
+                )
             if not math.isclose(sum(self.probabilities), 1.0, abs_tol=1e-9):
                 raise ValueError(f"probabilities that add up to 1, not {sum(self.probabilities)!r}")
         return self
@@ -157,34 +168,60 @@ def _kind(value: Any) -> str | None:
 
 
 InputSpec = Annotated[
-    Annotated[Uniform, Tag("uniform")] | Annotated[Triangular, Tag("triangular")] | Annotated[Normal, Tag("normal")]
-    | Annotated[Lognormal, Tag("lognormal")] | Annotated[Choice, Tag("choice")] | Annotated[Levels, Tag("values")],
-    Discriminator(_kind, custom_error_type="no_distribution",
-                  custom_error_message="a 'distribution' or a list of 'values'"),
+    Annotated[Uniform, Tag("uniform")]
+    | Annotated[Triangular, Tag("triangular")]
+    | Annotated[Normal, Tag("normal")]
+    | Annotated[Lognormal, Tag("lognormal")]
+    | Annotated[Choice, Tag("choice")]
+    | Annotated[Levels, Tag("values")],
+    Discriminator(
+        _kind,
+        custom_error_type="no_distribution",
+        custom_error_message="a 'distribution' or a list of 'values'",
+    ),
 ]
-_TAG_MODELS: dict[str, type[_Input]] = {"uniform": Uniform, "triangular": Triangular, "normal": Normal,
-                                        "lognormal": Lognormal, "choice": Choice, "values": Levels}
+_TAG_MODELS: dict[str, type[_Input]] = {
+    "uniform": Uniform,
+    "triangular": Triangular,
+    "normal": Normal,
+    "lognormal": Lognormal,
+    "choice": Choice,
+    "values": Levels,
+}
 
 Label = Annotated[str, StringConstraints(pattern=r"^[A-Za-z][A-Za-z0-9_]*$")]
 
 
 class EnsembleFile(_Strict):
     name: Annotated[str, StringConstraints(pattern=r"^[A-Za-z0-9][A-Za-z0-9_.-]*$")] = Field(
-        description="Short name; the default output folder is results/<name>.")
+        description="Short name; the default output folder is results/<name>."
+    )
     description: str = ""
     base: str = Field(description="Base scenario file, relative to the ensemble file.")
     design: Literal["latin_hypercube", "grid", "one_at_a_time"]
     members: Annotated[int, Field(ge=1, le=MAX_MEMBERS)] | None = Field(
-        None, description="Number of members (latin_hypercube); grid and one_at_a_time count their own.")
-    seed: Annotated[int, Field(ge=0)] | None = Field(None, description="Seed of the Latin hypercube (required there).")
+        None, description="Number of members (latin_hypercube); grid and one_at_a_time count their own."
+    )
+    seed: Annotated[int, Field(ge=0)] | None = Field(
+        None, description="Seed of the Latin hypercube (required there)."
+    )
     grid_levels: Annotated[int, Field(ge=2, le=21)] = Field(
-        3, description="grid: levels taken from each distribution, at the mid-quantiles (k + 0.5) / levels.")
-    tornado_quantiles: tuple[Annotated[float, Field(gt=0, lt=0.5)], Annotated[float, Field(gt=0.5, lt=1)]] = Field(
-        (0.05, 0.95), description="one_at_a_time: quantiles of each distribution used as its low and high.")
-    warm_start: bool = Field(True, description="Start each member's simplex from the base scenario's optimal basis.")
+        3, description="grid: levels taken from each distribution, at the mid-quantiles (k + 0.5) / levels."
+    )
+    tornado_quantiles: tuple[Annotated[float, Field(gt=0, lt=0.5)], Annotated[float, Field(gt=0.5, lt=1)]] = (
+        Field(
+            (0.05, 0.95),
+            description="one_at_a_time: quantiles of each distribution used as its low and high.",
+        )
+    )
+    warm_start: bool = Field(
+        True, description="Start each member's simplex from the base scenario's optimal basis."
+    )
     reference_budget_mt: Annotated[float, Field(ge=0)] | None = Field(
-        None, description="Budget [MtCO2] for the probability of staying within it; default: each member's own "
-        "policy.carbon_budget.total_mt.")
+        None,
+        description="Budget [MtCO2] for the probability of staying within it; default: each member's own "
+        "policy.carbon_budget.total_mt.",
+    )
     inputs: dict[Label, InputSpec] = Field(min_length=1)
 
     @model_validator(mode="after")
@@ -193,7 +230,9 @@ class EnsembleFile(_Strict):
             if self.members is None:
                 raise ValueError("'members' (how many to sample) with design latin_hypercube")
             if self.seed is None:
-                raise ValueError("'seed' (a whole number, so the samples can be made again) with design latin_hypercube")
+                raise ValueError(
+                    "'seed' (a whole number, so the samples can be made again) with design latin_hypercube"
+                )
         return self
 
 
@@ -276,8 +315,9 @@ def load_ensemble(path: str | Path) -> EnsembleSpec:
     path = Path(path)
     data = read_yaml_document(path, "ensemble")
     if not isinstance(data, dict):
-        raise located_error(path, "(top level)", type(data).__name__,
-                            "a mapping with name, base, design and inputs")
+        raise located_error(
+            path, "(top level)", type(data).__name__, "a mapping with name, base, design and inputs"
+        )
     try:
         spec = EnsembleFile.model_validate(data)
     except ValidationError as error:
@@ -298,20 +338,35 @@ def load_ensemble(path: str | Path) -> EnsembleSpec:
         def missing(prefix: tuple, part: str, choices: list[str], _where=where, _item=item) -> ScenarioError:
             under = ".".join(str(p) for p in prefix) or "the top level"
             if not choices:
-                return located_error(path, _where, _item.path, f"a field path that exists in {base_path.name}; "
-                                     f"{under} holds a single value, so {part!r} cannot follow it")
-            return located_error(path, _where, _item.path,
-                                 f"a field path that exists in {base_path.name}; {part!r} is not one of the keys "
-                                 f"under {under} {sorted(choices)}{did_you_mean(part, choices)}")
+                return located_error(
+                    path,
+                    _where,
+                    _item.path,
+                    f"a field path that exists in {base_path.name}; "
+                    f"{under} holds a single value, so {part!r} cannot follow it",
+                )
+            return located_error(
+                path,
+                _where,
+                _item.path,
+                f"a field path that exists in {base_path.name}; {part!r} is not one of the keys "
+                f"under {under} {sorted(choices)}{did_you_mean(part, choices)}",
+            )
 
         keys, value = resolve_path(raw, parse_path(item.path), on_error=missing)
         if keys in seen:
-            raise located_error(path, where, item.path, f"a field not varied already (inputs.{seen[keys]} varies it)")
+            raise located_error(
+                path, where, item.path, f"a field not varied already (inputs.{seen[keys]} varies it)"
+            )
         seen[keys] = label
         for other_keys, other in seen.items():
-            if other != label and (other_keys[:len(keys)] == keys or keys[:len(other_keys)] == other_keys):
-                raise located_error(path, where, item.path,
-                                    f"a field that neither contains nor lies inside another varied one (inputs.{other})")
+            if other != label and (other_keys[: len(keys)] == keys or keys[: len(other_keys)] == other_keys):
+                raise located_error(
+                    path,
+                    where,
+                    item.path,
+                    f"a field that neither contains nor lies inside another varied one (inputs.{other})",
+                )
         if item.apply == "multiplier":
             if not scalable(value):
                 raise located_error(path, where, item.path, _not_scalable(value))
@@ -319,30 +374,45 @@ def load_ensemble(path: str | Path) -> EnsembleSpec:
             if levels is not None:
                 for i, level in enumerate(levels):
                     if isinstance(level, str | dict):
-                        raise located_error(path, f"inputs.{label}.values.{i}", level,
-                                            "a number (a multiplier of the base value)")
+                        raise located_error(
+                            path,
+                            f"inputs.{label}.values.{i}",
+                            level,
+                            "a number (a multiplier of the base value)",
+                        )
         paths[label] = keys
         base_values[label] = value
-    loaded = EnsembleSpec(file=spec, path=path.resolve(), base_path=base_path, base=base, paths=paths,
-                          base_values=base_values)
+    loaded = EnsembleSpec(
+        file=spec, path=path.resolve(), base_path=base_path, base=base, paths=paths, base_values=base_values
+    )
     from .sampling import member_count
 
     count = member_count(loaded)
     if spec.design != "latin_hypercube" and spec.members is not None and spec.members != count:
-        raise located_error(path, "members", spec.members,
-                            f"{count} (the design {spec.design} makes that many) or no 'members' field")
+        raise located_error(
+            path,
+            "members",
+            spec.members,
+            f"{count} (the design {spec.design} makes that many) or no 'members' field",
+        )
     if count > MAX_MEMBERS:
-        raise located_error(path, "inputs", f"{count} members", f"a design of at most {MAX_MEMBERS:,} members")
+        raise located_error(
+            path, "inputs", f"{count} members", f"a design of at most {MAX_MEMBERS:,} members"
+        )
     return loaded
 
 
 def _not_scalable(value: Any) -> str:
     if isinstance(value, dict):
         keys = sorted(str(k) for k in value)
-        return (f"a field holding a number, a quantity with a unit or a {{year: value}} path (this one holds a "
-                f"mapping with the keys {keys}: point the path at one of them, or use 'as: absolute')")
-    return (f"a field holding a number, a quantity with a unit or a {{year: value}} path (this one holds "
-            f"{value!r}; use 'as: absolute' to replace it)")
+        return (
+            f"a field holding a number, a quantity with a unit or a {{year: value}} path (this one holds a "
+            f"mapping with the keys {keys}: point the path at one of them, or use 'as: absolute')"
+        )
+    return (
+        f"a field holding a number, a quantity with a unit or a {{year: value}} path (this one holds "
+        f"{value!r}; use 'as: absolute' to replace it)"
+    )
 
 
 def _explain(error: ValidationError, data: dict, path: Path) -> ScenarioError:
@@ -357,8 +427,9 @@ def _explain(error: ValidationError, data: dict, path: Path) -> ScenarioError:
     kind = first["type"]
     if loc and loc[-1] == "[key]":  # a bad input label
         loc = loc[:-1]
-        return located_error(path, loc, loc[-1], "an input label of letters, digits and underscores, starting with a "
-                             "letter")
+        return located_error(
+            path, loc, loc[-1], "an input label of letters, digits and underscores, starting with a letter"
+        )
     value = value_at(data, loc)
     if kind == "extra_forbidden":
         if tag is not None:
@@ -368,7 +439,9 @@ def _explain(error: ValidationError, data: dict, path: Path) -> ScenarioError:
         else:
             choices = []
         name = loc[-1]
-        return located_error(path, loc, name, f"one of the fields {choices}{did_you_mean(str(name), choices)}")
+        return located_error(
+            path, loc, name, f"one of the fields {choices}{did_you_mean(str(name), choices)}"
+        )
     if kind == "missing":
         return located_error(path, loc[:-1] or "(top level)", "nothing", f"the required field {loc[-1]!r}")
     if kind == "no_distribution" and isinstance(value, dict) and "distribution" in value:
@@ -376,10 +449,13 @@ def _explain(error: ValidationError, data: dict, path: Path) -> ScenarioError:
     if kind == "union_tag_invalid":
         name = value_at(data, loc + ("distribution",))
         choices = list(DISTRIBUTIONS)
-        return located_error(path, loc + ("distribution",), name,
-                             f"one of {choices}{did_you_mean(str(name), choices)}")
+        return located_error(
+            path, loc + ("distribution",), name, f"one of {choices}{did_you_mean(str(name), choices)}"
+        )
     if kind == "no_distribution":
-        return located_error(path, loc, value, f"a 'distribution' (one of {list(DISTRIBUTIONS)}) or a list of 'values'")
+        return located_error(
+            path, loc, value, f"a 'distribution' (one of {list(DISTRIBUTIONS)}) or a list of 'values'"
+        )
     message = first["msg"]
     for prefix in ("Value error, ", "Assertion failed, "):
         message = message.removeprefix(prefix)
@@ -395,5 +471,3 @@ def _explain(error: ValidationError, data: dict, path: Path) -> ScenarioError:
 
 def _aliases(model: type[BaseModel]) -> list[str]:
     return [info.alias or name for name, info in model.model_fields.items()]
-
-

@@ -24,10 +24,20 @@ BUDGET_TOLERANCE = 1e-6  # relative and absolute [MtCO2], as in the headline fig
 UNSERVED_TOLERANCE = 1e-6  # [TWh] and [PJ]: demand counts as served below this; common practice, no source
 
 HEADLINE_COLUMNS = (
-    "total_discounted_cost_million", "cumulative_emissions_mtco2", "cumulative_in_budget_period_mtco2",
-    "budget_mtco2", "budget_margin_mtco2", "within_budget", "first_year_emissions_mtco2",
-    "final_year_emissions_mtco2", "required_reduction_rate_per_yr", "carbon_price_first_year_per_tco2",
-    "carbon_price_final_year_per_tco2", "peak_build_mw_per_year", "unserved_electricity_twh", "unserved_fuel_pj",
+    "total_discounted_cost_million",
+    "cumulative_emissions_mtco2",
+    "cumulative_in_budget_period_mtco2",
+    "budget_mtco2",
+    "budget_margin_mtco2",
+    "within_budget",
+    "first_year_emissions_mtco2",
+    "final_year_emissions_mtco2",
+    "required_reduction_rate_per_yr",
+    "carbon_price_first_year_per_tco2",
+    "carbon_price_final_year_per_tco2",
+    "peak_build_mw_per_year",
+    "unserved_electricity_twh",
+    "unserved_fuel_pj",
 )
 
 
@@ -38,13 +48,17 @@ class EnsembleSummary:
     folder: Path
     design: dict
     members: pd.DataFrame  # one row per member: sampled inputs, status, headline figures, times
-    yearly: pd.DataFrame  # member, year, emissions_mtco2, cumulative_mtco2, cumulative_in_budget_period_mtco2, ...
+    yearly: (
+        pd.DataFrame
+    )  # member, year, emissions_mtco2, cumulative_mtco2, cumulative_in_budget_period_mtco2, ...
     capacity: pd.DataFrame  # member, technology, kind, year, capacity_mw
     yearly_percentiles: pd.DataFrame  # quantity, technology, year, p5 .. p95, mean, members
     headline_percentiles: pd.DataFrame  # quantity, p5 .. p95, mean, members
     stats: dict = field(default_factory=dict)
     tornado: pd.DataFrame | None = None  # one_at_a_time only
-    correlations: pd.DataFrame | None = None  # Spearman rank correlation of numeric inputs with the headline figures
+    correlations: pd.DataFrame | None = (
+        None  # Spearman rank correlation of numeric inputs with the headline figures
+    )
     base_headline: dict | None = None  # the base scenario's row (same columns as members), when it was solved
     base_yearly: pd.DataFrame | None = None  # the base scenario's yearly emissions
 
@@ -60,8 +74,11 @@ class EnsembleSummary:
 def read_design(folder: Path) -> dict:
     path = Path(folder) / "ensemble.json"
     if not path.is_file():
-        raise ScenarioError(f"{folder}: ensemble.json: got no such file; expected an ensemble folder written by "
-                            "'pathcast ensemble'.", file=str(folder))
+        raise ScenarioError(
+            f"{folder}: ensemble.json: got no such file; expected an ensemble folder written by "
+            "'pathcast ensemble'.",
+            file=str(folder),
+        )
     return json.loads(path.read_text(encoding="utf-8"))
 
 
@@ -101,22 +118,44 @@ def summarise_ensemble(folder: str | Path) -> EnsembleSummary:
     for column in HEADLINE_COLUMNS:
         if column not in members:
             members[column] = np.nan
-    yearly_columns = ["member", "year", "emissions_mtco2", "cumulative_mtco2", "cumulative_in_budget_period_mtco2",
-                      "budget_mtco2", "carbon_price_per_tco2"]
-    yearly = pd.concat(yearly_parts, ignore_index=True) if yearly_parts else pd.DataFrame(columns=yearly_columns)
-    capacity = (pd.concat(capacity_parts, ignore_index=True) if capacity_parts
-                else pd.DataFrame(columns=["member", "technology", "kind", "year", "capacity_mw"]))
-    summary = EnsembleSummary(folder=folder, design=design, members=members, yearly=yearly, capacity=capacity,
-                              yearly_percentiles=_yearly_percentiles(yearly, capacity),
-                              headline_percentiles=_headline_percentiles(members))
+    yearly_columns = [
+        "member",
+        "year",
+        "emissions_mtco2",
+        "cumulative_mtco2",
+        "cumulative_in_budget_period_mtco2",
+        "budget_mtco2",
+        "carbon_price_per_tco2",
+    ]
+    yearly = (
+        pd.concat(yearly_parts, ignore_index=True) if yearly_parts else pd.DataFrame(columns=yearly_columns)
+    )
+    capacity = (
+        pd.concat(capacity_parts, ignore_index=True)
+        if capacity_parts
+        else pd.DataFrame(columns=["member", "technology", "kind", "year", "capacity_mw"])
+    )
+    summary = EnsembleSummary(
+        folder=folder,
+        design=design,
+        members=members,
+        yearly=yearly,
+        capacity=capacity,
+        yearly_percentiles=_yearly_percentiles(yearly, capacity),
+        headline_percentiles=_headline_percentiles(members),
+    )
     summary.stats = _stats(design, members)
     if design["design"] == "one_at_a_time":
         summary.tornado = _tornado(design, members)
     summary.correlations = _correlations(design, members)
     base_record = store.get(design["base_hash"])
     if base_record is not None and base_record.get("status") == "solved":
-        base_row, base_yearly, _ = _member_row({"index": -1, "role": "base", "hash": design["base_hash"],
-                                                "samples": {}}, base_record, inputs, reference)
+        base_row, base_yearly, _ = _member_row(
+            {"index": -1, "role": "base", "hash": design["base_hash"], "samples": {}},
+            base_record,
+            inputs,
+            reference,
+        )
         summary.base_headline, summary.base_yearly = base_row, base_yearly
     return summary
 
@@ -147,35 +186,49 @@ def _member_row(member: dict, record: dict, inputs: dict, reference: float | Non
             first_year = int(years[0])
         counted = float(emissions[inside].sum())
         start = float(emissions[years == max(first_year, int(years[0]))][0])
-        served = (head.get("unserved_electricity_twh", 0.0) <= UNSERVED_TOLERANCE
-                  and head.get("unserved_fuel_pj", 0.0) <= UNSERVED_TOLERANCE)
+        served = (
+            head.get("unserved_electricity_twh", 0.0) <= UNSERVED_TOLERANCE
+            and head.get("unserved_fuel_pj", 0.0) <= UNSERVED_TOLERANCE
+        )
         rate, rate_note = _required_rate(start, budget)
         price = yearly["carbon_price_per_tco2"]
-        row.update({
-            "total_discounted_cost_million": head["total_discounted_cost_million"],
-            "cumulative_emissions_mtco2": head["cumulative_emissions_mtco2"],
-            "cumulative_in_budget_period_mtco2": counted,
-            "budget_mtco2": math.nan if budget is None else float(budget),
-            "budget_margin_mtco2": math.nan if budget is None else float(budget) - counted,
-            "within_budget": None if budget is None else bool(
-                counted <= budget * (1 + BUDGET_TOLERANCE) + BUDGET_TOLERANCE and served),
-            "first_year_emissions_mtco2": head["first_year_emissions_mtco2"],
-            "final_year_emissions_mtco2": head["final_year_emissions_mtco2"],
-            "required_reduction_rate_per_yr": rate,
-            "required_rate_note": rate_note,
-            "carbon_price_first_year_per_tco2": float(price[0]),
-            "carbon_price_final_year_per_tco2": float(price[-1]),
-            "peak_build_mw_per_year": head["peak_build_mw_per_year"],
-            "unserved_electricity_twh": head["unserved_electricity_twh"],
-            "unserved_fuel_pj": head["unserved_fuel_pj"],
-        })
+        row.update(
+            {
+                "total_discounted_cost_million": head["total_discounted_cost_million"],
+                "cumulative_emissions_mtco2": head["cumulative_emissions_mtco2"],
+                "cumulative_in_budget_period_mtco2": counted,
+                "budget_mtco2": math.nan if budget is None else float(budget),
+                "budget_margin_mtco2": math.nan if budget is None else float(budget) - counted,
+                "within_budget": None
+                if budget is None
+                else bool(counted <= budget * (1 + BUDGET_TOLERANCE) + BUDGET_TOLERANCE and served),
+                "first_year_emissions_mtco2": head["first_year_emissions_mtco2"],
+                "final_year_emissions_mtco2": head["final_year_emissions_mtco2"],
+                "required_reduction_rate_per_yr": rate,
+                "required_rate_note": rate_note,
+                "carbon_price_first_year_per_tco2": float(price[0]),
+                "carbon_price_final_year_per_tco2": float(price[-1]),
+                "peak_build_mw_per_year": head["peak_build_mw_per_year"],
+                "unserved_electricity_twh": head["unserved_electricity_twh"],
+                "unserved_fuel_pj": head["unserved_fuel_pj"],
+            }
+        )
         yearly_frame = pd.DataFrame({"member": member["index"], **yearly})
         # against the budget used here (the reference budget, when given, may belong to no member)
         yearly_frame["cumulative_in_budget_period_mtco2"] = np.cumsum(np.where(inside, emissions, 0.0))
         yearly_frame["budget_mtco2"] = math.nan if budget is None else float(budget)
         for name, tech in record["capacity"].items():
-            capacity_frames.append(pd.DataFrame({"member": member["index"], "technology": name, "kind": tech["kind"],
-                                                "year": yearly["year"], "capacity_mw": tech["capacity_mw"]}))
+            capacity_frames.append(
+                pd.DataFrame(
+                    {
+                        "member": member["index"],
+                        "technology": name,
+                        "kind": tech["kind"],
+                        "year": yearly["year"],
+                        "capacity_mw": tech["capacity_mw"],
+                    }
+                )
+            )
     solver = record.get("solver") or {}
     row["solve_path"] = solver.get("path", "")
     row["warm_start"] = solver.get("warm_start")
@@ -197,13 +250,30 @@ def _percentile_row(values: np.ndarray) -> dict[str, float]:
 
 def _yearly_percentiles(yearly: pd.DataFrame, capacity: pd.DataFrame) -> pd.DataFrame:
     rows = []
-    for quantity in ("emissions_mtco2", "cumulative_mtco2", "cumulative_in_budget_period_mtco2", "carbon_price_per_tco2"):
+    for quantity in (
+        "emissions_mtco2",
+        "cumulative_mtco2",
+        "cumulative_in_budget_period_mtco2",
+        "carbon_price_per_tco2",
+    ):
         for year, group in yearly.groupby("year"):
-            rows.append({"quantity": quantity, "technology": "", "year": int(year),
-                         **_percentile_row(group[quantity].to_numpy(dtype=float))})
+            rows.append(
+                {
+                    "quantity": quantity,
+                    "technology": "",
+                    "year": int(year),
+                    **_percentile_row(group[quantity].to_numpy(dtype=float)),
+                }
+            )
     for (technology, year), group in capacity.groupby(["technology", "year"], sort=False):
-        rows.append({"quantity": "capacity_mw", "technology": technology, "year": int(year),
-                     **_percentile_row(group["capacity_mw"].to_numpy(dtype=float))})
+        rows.append(
+            {
+                "quantity": "capacity_mw",
+                "technology": technology,
+                "year": int(year),
+                **_percentile_row(group["capacity_mw"].to_numpy(dtype=float)),
+            }
+        )
     columns = ["quantity", "technology", "year", *[f"p{p}" for p in PERCENTILES], "mean", "members"]
     return pd.DataFrame(rows, columns=columns)
 
@@ -214,8 +284,12 @@ def _headline_percentiles(members: pd.DataFrame) -> pd.DataFrame:
     for column in HEADLINE_COLUMNS:
         if column == "within_budget":
             continue
-        rows.append({"quantity": column, **_percentile_row(pd.to_numeric(solved[column], errors="coerce")
-                                                          .to_numpy(dtype=float))})
+        rows.append(
+            {
+                "quantity": column,
+                **_percentile_row(pd.to_numeric(solved[column], errors="coerce").to_numpy(dtype=float)),
+            }
+        )
     return pd.DataFrame(rows, columns=["quantity", *[f"p{p}" for p in PERCENTILES], "mean", "members"])
 
 
@@ -228,7 +302,9 @@ def _stats(design: dict, members: pd.DataFrame) -> dict:
     counted = len(solved) + len(infeasible)
     within = int(solved["within_budget"].fillna(False).astype(bool).sum()) if has_budget else 0
     probability = within / counted if has_budget and counted else math.nan
-    failures = {f"{t}": int(n) for t, n in members.loc[status == "failed", "error_type"].value_counts().items()}
+    failures = {
+        f"{t}": int(n) for t, n in members.loc[status == "failed", "error_type"].value_counts().items()
+    }
     return {
         "members": int(len(members)),
         "solved": int(len(solved)),
@@ -255,18 +331,35 @@ def _tornado(design: dict, members: pd.DataFrame) -> pd.DataFrame:
     for label, info in design["inputs"].items():
         column = _input_column(label, info)
         for metric in TORNADO_METRICS:
+
             def at(role: str, _metric=metric) -> float:
                 if role not in by_role.index or by_role.loc[role, "status"] != "solved":
                     return math.nan
                 return float(by_role.loc[role, _metric])
+
             base, low, high = at("base"), at(f"{label}:low"), at(f"{label}:high")
-            rows.append({"input": label, "path": info["path"], "as": info["as"], "metric": metric,
-                         "low_value": by_role.loc[f"{label}:low", column] if f"{label}:low" in by_role.index else None,
-                         "high_value": by_role.loc[f"{label}:high", column] if f"{label}:high" in by_role.index else None,
-                         "base": base, "at_low": low, "at_high": high,
-                         "swing": abs(high - low) if math.isfinite(high) and math.isfinite(low) else math.nan})
+            rows.append(
+                {
+                    "input": label,
+                    "path": info["path"],
+                    "as": info["as"],
+                    "metric": metric,
+                    "low_value": by_role.loc[f"{label}:low", column]
+                    if f"{label}:low" in by_role.index
+                    else None,
+                    "high_value": by_role.loc[f"{label}:high", column]
+                    if f"{label}:high" in by_role.index
+                    else None,
+                    "base": base,
+                    "at_low": low,
+                    "at_high": high,
+                    "swing": abs(high - low) if math.isfinite(high) and math.isfinite(low) else math.nan,
+                }
+            )
     frame = pd.DataFrame(rows)
-    return frame.sort_values(["metric", "swing"], ascending=[True, False], na_position="last", ignore_index=True)
+    return frame.sort_values(
+        ["metric", "swing"], ascending=[True, False], na_position="last", ignore_index=True
+    )
 
 
 def _correlations(design: dict, members: pd.DataFrame) -> pd.DataFrame | None:

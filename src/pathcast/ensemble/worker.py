@@ -35,8 +35,16 @@ from ..scenario.loader import load_scenario_mapping
 from ..solve import Solution, SolverOptions, _status_name, handoff, highs_options_for, new_highs
 from .members import Override, apply_overrides
 
-__all__ = ["SharedContext", "MemberTask", "BaseTemplate", "solve_member", "solve_base", "compact_result",
-           "basis_arrays", "MEMBER_THREADS"]
+__all__ = [
+    "SharedContext",
+    "MemberTask",
+    "BaseTemplate",
+    "solve_member",
+    "solve_base",
+    "compact_result",
+    "basis_arrays",
+    "MEMBER_THREADS",
+]
 
 MEMBER_THREADS = 1  # HiGHS threads per member: the ensemble runs members in parallel, one per worker process
 
@@ -66,8 +74,12 @@ class BaseTemplate:
     constraint matrix is the same."""
 
     def __init__(self, context: SharedContext):
-        loaded = load_scenario_mapping(copy.deepcopy(context.base_raw), context.base_path,
-                                       provenance=context.provenance, files=context.files)
+        loaded = load_scenario_mapping(
+            copy.deepcopy(context.base_raw),
+            context.base_path,
+            provenance=context.provenance,
+            files=context.files,
+        )
         model = build_linear_program(prepare_inputs(loaded.scenario))
         matrix, row_lower, row_upper = model.lp.matrix()
         handles = to_pyomo(model.lp)
@@ -85,13 +97,17 @@ class BaseTemplate:
     def adapt(self, lp_arrays) -> tuple[Any, np.ndarray, np.ndarray] | None:
         """The base HiGHS model with this member's costs and bounds, or None when the member's structure differs."""
         lp, matrix, row_lower, row_upper = lp_arrays
-        if matrix.shape != self.shape or not (np.array_equal(matrix.indptr, self.indptr)
-                                              and np.array_equal(matrix.indices, self.indices)
-                                              and np.array_equal(matrix.data, self.data)):
+        if matrix.shape != self.shape or not (
+            np.array_equal(matrix.indptr, self.indptr)
+            and np.array_equal(matrix.indices, self.indices)
+            and np.array_equal(matrix.data, self.data)
+        ):
             return None
-        if not (np.array_equal(np.isfinite(row_lower), self.lower_finite)
-                and np.array_equal(np.isfinite(row_upper), self.upper_finite)
-                and np.array_equal(row_lower == row_upper, self.equal)):
+        if not (
+            np.array_equal(np.isfinite(row_lower), self.lower_finite)
+            and np.array_equal(np.isfinite(row_upper), self.upper_finite)
+            and np.array_equal(row_lower == row_upper, self.equal)
+        ):
             return None
         cost = lp.cost_vector()
         if np.any(cost[self.unmapped] != 0):
@@ -128,8 +144,10 @@ def _highs_basis(arrays: tuple[np.ndarray, np.ndarray]):
 
 def basis_arrays(h) -> tuple[np.ndarray, np.ndarray]:
     basis = h.getBasis()
-    return (np.array([int(v) for v in basis.col_status], dtype=np.int8),
-            np.array([int(v) for v in basis.row_status], dtype=np.int8))
+    return (
+        np.array([int(v) for v in basis.col_status], dtype=np.int8),
+        np.array([int(v) for v in basis.row_status], dtype=np.int8),
+    )
 
 
 def _options(options: SolverOptions, n_rows: int, warm: bool) -> dict:
@@ -170,7 +188,9 @@ def _solve(context: SharedContext, task: MemberTask, *, warm_start: bool, keep_b
 
     try:
         raw = apply_overrides(copy.deepcopy(context.base_raw), task.overrides)
-        loaded = load_scenario_mapping(raw, context.base_path, provenance=context.provenance, files=context.files)
+        loaded = load_scenario_mapping(
+            raw, context.base_path, provenance=context.provenance, files=context.files
+        )
         lap("validate_s")
         inputs = prepare_inputs(loaded.scenario)
         lap("inputs_s")
@@ -187,8 +207,11 @@ def _solve(context: SharedContext, task: MemberTask, *, warm_start: bool, keep_b
             hl, col_map, row_map = handoff(to_pyomo(model.lp), *matrix.shape)
             path = "rebuilt"
         basis = None
-        if template is not None and template.basis is not None and (hl.num_col_, hl.num_row_) == (
-                len(template.basis.col_status), len(template.basis.row_status)):
+        if (
+            template is not None
+            and template.basis is not None
+            and (hl.num_col_, hl.num_row_) == (len(template.basis.col_status), len(template.basis.row_status))
+        ):
             basis = template.basis
         h = new_highs(log=options.log)
         highs_opts = _options(options, hl.num_row_, warm=basis is not None)
@@ -202,28 +225,49 @@ def _solve(context: SharedContext, task: MemberTask, *, warm_start: bool, keep_b
         lap("solve_s")
         status = _status_name(h.getModelStatus())
         info = h.getInfo()
-        iterations = {"simplex": int(info.simplex_iteration_count), "ipm": int(info.ipm_iteration_count),
-                      "crossover": int(info.crossover_iteration_count)}
-        record["solver"] = {"status": status, "path": path, "warm_start": bool(warm), "method":
-                            "simplex" if basis is not None else options.method, "iterations": iterations}
+        iterations = {
+            "simplex": int(info.simplex_iteration_count),
+            "ipm": int(info.ipm_iteration_count),
+            "crossover": int(info.crossover_iteration_count),
+        }
+        record["solver"] = {
+            "status": status,
+            "path": path,
+            "warm_start": bool(warm),
+            "method": "simplex" if basis is not None else options.method,
+            "iterations": iterations,
+        }
         if status != "optimal":
             if status in ("infeasible", "unbounded_or_infeasible"):
                 raise InfeasibleError(
                     f"scenario {inputs.name!r}: HiGHS reports the model {status.replace('_', ' ')}: the carbon budget, "
                     "caps, clean-electricity share, minimum builds and phase-outs cannot all be met together.",
-                    diagnosis={"status": status})
-            raise SolverError(f"scenario {inputs.name!r}: HiGHS stopped with status {status!r} after "
-                              f"{times['solve_s']:.1f} s; try another solver method or a longer time limit.")
+                    diagnosis={"status": status},
+                )
+            raise SolverError(
+                f"scenario {inputs.name!r}: HiGHS stopped with status {status!r} after "
+                f"{times['solve_s']:.1f} s; try another solver method or a longer time limit."
+            )
         sol = h.getSolution()
         x = np.zeros(matrix.shape[1])
         x[col_map] = np.asarray(sol.col_value)
         duals = np.zeros(matrix.shape[0])
         if sol.dual_valid:
             duals[row_map] = np.asarray(sol.row_dual)
-        solution = Solution(status=status, objective=float(info.objective_function_value), x=x, row_dual=duals,
-                            method=record["solver"]["method"], options=highs_opts, handoff_s=times["handoff_s"],
-                            solve_s=times["solve_s"], rows=hl.num_row_, columns=hl.num_col_,
-                            nonzeros=len(hl.a_matrix_.value_), iterations=iterations)
+        solution = Solution(
+            status=status,
+            objective=float(info.objective_function_value),
+            x=x,
+            row_dual=duals,
+            method=record["solver"]["method"],
+            options=highs_opts,
+            handoff_s=times["handoff_s"],
+            solve_s=times["solve_s"],
+            rows=hl.num_row_,
+            columns=hl.num_col_,
+            nonzeros=len(hl.a_matrix_.value_),
+            iterations=iterations,
+        )
         tables = extract_tables(model, solution)
         summary = headline_figures(model, solution, tables)
         record.update(compact_result(tables, summary))
@@ -233,8 +277,11 @@ def _solve(context: SharedContext, task: MemberTask, *, warm_start: bool, keep_b
         lap("extract_s")
     except Exception as error:  # a failed member is recorded with its reason; the others go on
         record["status"] = "failed"
-        record["error"] = {"type": type(error).__name__, "message": str(error),
-                           "deterministic": isinstance(error, PathcastError)}
+        record["error"] = {
+            "type": type(error).__name__,
+            "message": str(error),
+            "deterministic": isinstance(error, PathcastError),
+        }
     times["member_s"] = round(time.perf_counter() - started, 6)
     record["times"] = times
     return record
@@ -274,8 +321,10 @@ def compact_result(tables: dict, summary: dict) -> dict:
     technologies = {}
     for name, frame in cap.groupby("technology", sort=False):
         frame = frame.set_index("year").reindex(years)
-        technologies[str(name)] = {"kind": str(frame["kind"].iloc[0]),
-                                   "capacity_mw": [round(float(v), 6) for v in frame["capacity_mw"]]}
+        technologies[str(name)] = {
+            "kind": str(frame["kind"].iloc[0]),
+            "capacity_mw": [round(float(v), 6) for v in frame["capacity_mw"]],
+        }
     return {
         "headline": {k: _number(v) for k, v in summary.items()},
         "yearly": {

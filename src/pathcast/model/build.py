@@ -53,7 +53,9 @@ def apply_column_bounds(lp: LinearProgram, bounds: dict[str, tuple[np.ndarray, n
     values are clipped into the model's own bounds, so fixing a column to a solved value never makes it infeasible."""
     for name, (lower, upper) in bounds.items():
         if name not in lp.variables:
-            raise ValueError(f"column_bounds: {name!r} is not a variable block; expected one of {sorted(lp.variables)}")
+            raise ValueError(
+                f"column_bounds: {name!r} is not a variable block; expected one of {sorted(lp.variables)}"
+            )
         block = lp.variables[name]
         lo = np.broadcast_to(np.asarray(lower, dtype=float), block.shape).ravel()
         hi = np.broadcast_to(np.asarray(upper, dtype=float), block.shape).ravel()

@@ -15,7 +15,13 @@ import numpy as np
 
 from .context import BuildContext
 
-__all__ = ["add_dispatch", "add_electricity_balance", "add_pooled_output", "available_output", "generation_values"]
+__all__ = [
+    "add_dispatch",
+    "add_electricity_balance",
+    "add_pooled_output",
+    "available_output",
+    "generation_values",
+]
 
 
 def add_dispatch(ctx: BuildContext) -> None:
@@ -28,13 +34,18 @@ def add_dispatch(ctx: BuildContext) -> None:
     ctx.blocks["unserved"] = unserved
 
     if G:
-        limit = lp.add_rows("generation_limit", ("technology", "year", "day", "hour"), (G, Y, D, H), "<=", "GW")
+        limit = lp.add_rows(
+            "generation_limit", ("technology", "year", "day", "hour"), (G, Y, D, H), "<=", "GW"
+        )
         rows = limit.local()
         limit.add(rows, generation.all(), 1.0)
         availability = np.stack([t.availability for t in gens])  # [G, D, H]
         capacity = ctx.capacity_columns(gens)  # [G, Y]
-        limit.add(rows, np.broadcast_to(capacity[:, :, None, None], rows.shape),
-                  -np.broadcast_to(availability[:, None, :, :], rows.shape))
+        limit.add(
+            rows,
+            np.broadcast_to(capacity[:, :, None, None], rows.shape),
+            -np.broadcast_to(availability[:, None, :, :], rows.shape),
+        )
         vom = np.array([t.variable_om for t in gens])
         lp.add_cost(generation.all(), vom[:, None, None, None] * ctx.hour_cost_weight[None])
     lp.add_cost(unserved.all(), ctx.inputs.value_of_lost_load * ctx.hour_cost_weight)
@@ -49,24 +60,34 @@ def add_dispatch(ctx: BuildContext) -> None:
         add_pooled_output(ctx, limit, rows, -1.0)
 
 
-def add_pooled_output(ctx: BuildContext, block, rows: np.ndarray, coef: np.ndarray | float,
-                      years: np.ndarray | None = None) -> None:
+def add_pooled_output(
+    ctx: BuildContext, block, rows: np.ndarray, coef: np.ndarray | float, years: np.ndarray | None = None
+) -> None:
     """Add coef x availability x capacity of every pooled generator to ``rows`` [years, D, H] of ``block``
     (all years unless ``years`` gives their positions); ``coef`` broadcasts against ``rows``."""
     capacity = ctx.capacity_columns(ctx.pooled_generators)  # [P, Y]
     if years is not None:
         capacity = capacity[:, years]
     for p, t in enumerate(ctx.pooled_generators):
-        block.add(rows, np.broadcast_to(capacity[p][:, None, None], rows.shape),
-                  coef * np.broadcast_to(t.availability[None], rows.shape))
+        block.add(
+            rows,
+            np.broadcast_to(capacity[p][:, None, None], rows.shape),
+            coef * np.broadcast_to(t.availability[None], rows.shape),
+        )
 
 
 def add_electricity_balance(ctx: BuildContext) -> None:
     """Supply = demand in every representative hour [GW]; added after storage and converters exist."""
     lp = ctx.lp
     shape = (ctx.Y, ctx.D, ctx.H)
-    balance = lp.add_rows("electricity_balance", ("year", "day", "hour"), shape, "==", "GW",
-                          rhs=ctx.inputs.electricity_demand_gw)
+    balance = lp.add_rows(
+        "electricity_balance",
+        ("year", "day", "hour"),
+        shape,
+        "==",
+        "GW",
+        rhs=ctx.inputs.electricity_demand_gw,
+    )
     rows = balance.local()
     generation = ctx.blocks["generation"].all()
     for g in range(generation.shape[0]):

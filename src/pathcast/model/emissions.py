@@ -33,6 +33,8 @@ def add_emissions(ctx: BuildContext) -> None:
     for i, t in enumerate(ctx.electric_converters):
         if t.process_emission_factor:
             coef = -t.process_emission_factor * t.efficiency * ctx.hour_weight * PJ_PER_GWH
-            rows.add(np.broadcast_to(r[:, None, None], coef.shape), ctx.blocks["converter_power"].all()[i], coef)
+            rows.add(
+                np.broadcast_to(r[:, None, None], coef.shape), ctx.blocks["converter_power"].all()[i], coef
+            )
     # a carbon price path [currency/tCO2] = [million currency / MtCO2]
     lp.add_cost(emissions.all(), inputs.carbon_price * ctx.discount)

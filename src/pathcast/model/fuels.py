@@ -38,7 +38,9 @@ def add_fuels(ctx: BuildContext) -> None:
 
     # --- converters ----------------------------------------------------------------------------------------------
     electric = ctx.electric_converters
-    power = lp.add_variables("converter_power", ("technology", "year", "day", "hour"), (len(electric), Y, D, H), "GW")
+    power = lp.add_variables(
+        "converter_power", ("technology", "year", "day", "hour"), (len(electric), Y, D, H), "GW"
+    )
     ctx.blocks["converter_power"] = power
     if electric:
         shape = (len(electric), Y, D, H)
@@ -47,7 +49,11 @@ def add_fuels(ctx: BuildContext) -> None:
         rows.add(r, power.all(), 1.0)
         availability = np.stack([t.availability for t in electric])
         capacity = ctx.capacity_columns(electric)
-        rows.add(r, np.broadcast_to(capacity[:, :, None, None], shape), -np.broadcast_to(availability[:, None], shape))
+        rows.add(
+            r,
+            np.broadcast_to(capacity[:, :, None, None], shape),
+            -np.broadcast_to(availability[:, None], shape),
+        )
         vom = np.array([t.variable_om for t in electric])
         lp.add_cost(power.all(), vom[:, None, None, None] * ctx.hour_cost_weight[None])
 
@@ -55,19 +61,28 @@ def add_fuels(ctx: BuildContext) -> None:
     conv_input = lp.add_variables("converter_input", ("technology", "year"), (len(fuel_conv), Y), "PJ/yr")
     ctx.blocks["converter_input"] = conv_input
     if fuel_conv:
-        rows = lp.add_rows("converter_input_limit", ("technology", "year"), (len(fuel_conv), Y), "<=", "PJ/yr")
+        rows = lp.add_rows(
+            "converter_input_limit", ("technology", "year"), (len(fuel_conv), Y), "<=", "PJ/yr"
+        )
         r = rows.local()
         rows.add(r, conv_input.all(), 1.0)
         capacity = ctx.capacity_columns(fuel_conv)
         avail = np.array([[t.converter_availability * PJ_PER_GW_YEAR] for t in fuel_conv])
         rows.add(r, capacity, -np.broadcast_to(avail, capacity.shape))
-        vom_per_pj = np.array([[t.variable_om / PJ_PER_GWH] for t in fuel_conv])  # [million/GWh] -> [million/PJ]
+        vom_per_pj = np.array(
+            [[t.variable_om / PJ_PER_GWH] for t in fuel_conv]
+        )  # [million/GWh] -> [million/PJ]
         lp.add_cost(conv_input.all(), vom_per_pj * ctx.discount[None, :])
 
     # --- supplies ------------------------------------------------------------------------------------------------
     supplies = inputs.supplies
-    supply = lp.add_variables("supply", ("supply", "year"), (len(supplies), Y), "PJ/yr",
-                              upper=np.array([s.potential_pj for s in supplies]).reshape(len(supplies), Y))
+    supply = lp.add_variables(
+        "supply",
+        ("supply", "year"),
+        (len(supplies), Y),
+        "PJ/yr",
+        upper=np.array([s.potential_pj for s in supplies]).reshape(len(supplies), Y),
+    )
     ctx.blocks["supply"] = supply
     for i, s in enumerate(supplies):
         lp.add_cost(supply.all()[i], s.price * ctx.discount)
@@ -80,8 +95,14 @@ def add_fuels(ctx: BuildContext) -> None:
     unserved_fuel = lp.add_variables("unserved_fuel", ("demand", "year"), (len(demands), Y), "PJ/yr")
     ctx.blocks.update(delivery=delivery, unserved_fuel=unserved_fuel)
     if demands:
-        rows = lp.add_rows("fuel_demand", ("demand", "year"), (len(demands), Y), "==", "PJ/yr",
-                           rhs=np.array([d.demand_pj for d in demands]))
+        rows = lp.add_rows(
+            "fuel_demand",
+            ("demand", "year"),
+            (len(demands), Y),
+            "==",
+            "PJ/yr",
+            rhs=np.array([d.demand_pj for d in demands]),
+        )
         r = rows.local()
         for p, (d, _c) in enumerate(pairs):
             rows.add(r[d], delivery.all()[p], 1.0)

@@ -65,7 +65,9 @@ class RowBlock:
 
     def add(self, rows: np.ndarray, cols: np.ndarray, coefs: np.ndarray | float) -> None:
         """Add coefficients; ``rows`` are local row numbers (flat), broadcast against ``cols`` and ``coefs``."""
-        rows, cols, coefs = np.broadcast_arrays(np.asarray(rows), np.asarray(cols), np.asarray(coefs, dtype=float))
+        rows, cols, coefs = np.broadcast_arrays(
+            np.asarray(rows), np.asarray(cols), np.asarray(coefs, dtype=float)
+        )
         self.rows.append(rows.ravel())
         self.cols.append(cols.ravel())
         self.coefs.append(coefs.ravel())
@@ -87,11 +89,22 @@ class LinearProgram:
         self._matrix_cache: tuple | None = None  # (fingerprint, (matrix, lower, upper))
 
     # ---------------------------------------------------------------------------------------- variables
-    def add_variables(self, name: str, dims: tuple[str, ...], shape: tuple[int, ...], unit: str,
-                      lower: float | np.ndarray = 0.0, upper: float | np.ndarray = math.inf) -> VariableBlock:
+    def add_variables(
+        self,
+        name: str,
+        dims: tuple[str, ...],
+        shape: tuple[int, ...],
+        unit: str,
+        lower: float | np.ndarray = 0.0,
+        upper: float | np.ndarray = math.inf,
+    ) -> VariableBlock:
         size = int(np.prod(shape)) if shape else 1
         block = VariableBlock(
-            name=name, dims=dims, shape=tuple(shape), offset=self._n_cols, unit=unit,
+            name=name,
+            dims=dims,
+            shape=tuple(shape),
+            offset=self._n_cols,
+            unit=unit,
             lower=np.broadcast_to(np.asarray(lower, dtype=float), shape).ravel().copy(),
             upper=np.broadcast_to(np.asarray(upper, dtype=float), shape).ravel().copy(),
         )
@@ -110,14 +123,27 @@ class LinearProgram:
         self._cost_coefs.append(coefs.ravel())
 
     # ---------------------------------------------------------------------------------------- rows
-    def add_rows(self, name: str, dims: tuple[str, ...], shape: tuple[int, ...], sense: str, unit: str,
-                 rhs: float | np.ndarray = 0.0) -> RowBlock:
+    def add_rows(
+        self,
+        name: str,
+        dims: tuple[str, ...],
+        shape: tuple[int, ...],
+        sense: str,
+        unit: str,
+        rhs: float | np.ndarray = 0.0,
+    ) -> RowBlock:
         if sense not in ("==", "<=", ">="):
             raise ValueError(f"sense must be '==', '<=' or '>=', got {sense!r}")
         if name in self.row_blocks:
             raise ValueError(f"row block {name!r} exists already")
-        block = RowBlock(name=name, dims=dims, shape=tuple(shape), sense=sense, unit=unit,
-                         rhs=np.broadcast_to(np.asarray(rhs, dtype=float), shape).ravel().copy())
+        block = RowBlock(
+            name=name,
+            dims=dims,
+            shape=tuple(shape),
+            sense=sense,
+            unit=unit,
+            rhs=np.broadcast_to(np.asarray(rhs, dtype=float), shape).ravel().copy(),
+        )
         self.row_blocks[name] = block
         return block
 
@@ -131,7 +157,10 @@ class LinearProgram:
     def _fingerprint(self) -> tuple:
         """Changes whenever a block or a batch of coefficients is added (blocks only ever grow) or a right-hand side
         changes."""
-        return (self._n_cols, tuple((name, b.sense, len(b.rows), hash(b.rhs.tobytes())) for name, b in self.row_blocks.items()))
+        return (
+            self._n_cols,
+            tuple((name, b.sense, len(b.rows), hash(b.rhs.tobytes())) for name, b in self.row_blocks.items()),
+        )
 
     def matrix(self) -> tuple[sp.csr_array, np.ndarray, np.ndarray]:
         """The whole constraint matrix in CSR with row lower and upper bounds (duplicates summed, zeros dropped).
@@ -160,13 +189,19 @@ class LinearProgram:
             upper.append(hi)
             offset += block.size
         if rows:
-            matrix = sp.coo_array((np.concatenate(coefs), (np.concatenate(rows), np.concatenate(cols))),
-                                  shape=(offset, self._n_cols)).tocsr()
+            matrix = sp.coo_array(
+                (np.concatenate(coefs), (np.concatenate(rows), np.concatenate(cols))),
+                shape=(offset, self._n_cols),
+            ).tocsr()
         else:
             matrix = sp.csr_array((offset, self._n_cols))
         matrix.sum_duplicates()
         matrix.eliminate_zeros()
-        return matrix, np.concatenate(lower) if lower else np.zeros(0), np.concatenate(upper) if upper else np.zeros(0)
+        return (
+            matrix,
+            np.concatenate(lower) if lower else np.zeros(0),
+            np.concatenate(upper) if upper else np.zeros(0),
+        )
 
     def column_bounds(self) -> tuple[np.ndarray, np.ndarray]:
         blocks = list(self.variables.values())

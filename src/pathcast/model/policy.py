@@ -32,19 +32,35 @@ def add_policy(ctx: BuildContext) -> None:
 
     if inputs.emission_caps_mt:
         cap_years = sorted(inputs.emission_caps_mt)
-        rows = lp.add_rows("emission_cap", ("year",), (len(cap_years),), "<=", "MtCO2/yr",
-                           rhs=np.array([inputs.emission_caps_mt[y] for y in cap_years]))
+        rows = lp.add_rows(
+            "emission_cap",
+            ("year",),
+            (len(cap_years),),
+            "<=",
+            "MtCO2/yr",
+            rhs=np.array([inputs.emission_caps_mt[y] for y in cap_years]),
+        )
         ctx.cap_years = cap_years
         rows.add(np.arange(len(cap_years)), emissions[np.searchsorted(years, cap_years)], 1.0)
 
     # reserve margin: sum credit x capacity >= (1 + margin) x peak demand [GW]
     credited = [t for t in ctx.capacity_techs if t.capacity_credit > 0]
-    rows = lp.add_rows("reserve_margin", ("year",), (Y,), ">=", "GW",
-                       rhs=(1.0 + inputs.reserve_margin) * inputs.peak_demand_gw)
+    rows = lp.add_rows(
+        "reserve_margin",
+        ("year",),
+        (Y,),
+        ">=",
+        "GW",
+        rhs=(1.0 + inputs.reserve_margin) * inputs.peak_demand_gw,
+    )
     if credited:
         capacity = ctx.capacity_columns(credited)
         credit = np.array([[t.capacity_credit] for t in credited])
-        rows.add(np.broadcast_to(np.arange(Y)[None, :], capacity.shape), capacity, np.broadcast_to(credit, capacity.shape))
+        rows.add(
+            np.broadcast_to(np.arange(Y)[None, :], capacity.shape),
+            capacity,
+            np.broadcast_to(credit, capacity.shape),
+        )
 
     # clean share of generation: sum_clean E - share x sum_all E >= 0 [TWh]
     if inputs.clean_share is not None and ctx.generators:

@@ -6,7 +6,13 @@ from __future__ import annotations
 
 import hashlib
 
-__all__ = ["technology_style", "technology_colour", "technology_hatch", "SCENARIO_LINESTYLES", "scenario_style"]
+__all__ = [
+    "technology_style",
+    "technology_colour",
+    "technology_hatch",
+    "SCENARIO_LINESTYLES",
+    "scenario_style",
+]
 
 # keyword -> (colour, hatch); first match wins, so more specific keywords come first. Colours are our own choice.
 _FAMILIES: tuple[tuple[str, str, str], ...] = (
@@ -64,12 +70,24 @@ def technology_hatch(name: str) -> str:
 
 
 # scenarios in overlay charts: line styles and markers that survive black-and-white printing
-SCENARIO_LINESTYLES = (("-", "o"), ("--", "s"), (":", "^"), ("-.", "D"), ((0, (5, 1, 1, 1)), "v"), ((0, (1, 1)), "P"))
+SCENARIO_LINESTYLES = (
+    ("-", "o"),
+    ("--", "s"),
+    (":", "^"),
+    ("-.", "D"),
+    ((0, (5, 1, 1, 1)), "v"),
+    ((0, (1, 1)), "P"),
+)
 _SCENARIO_COLOURS = ("#1b1b1b", "#d1495b", "#1f5f8b", "#6a994e", "#8e5ea2", "#b5651d")
 
 
 def scenario_style(index: int) -> dict:
     """Matplotlib line keywords for the index-th scenario of an overlay chart."""
     linestyle, marker = SCENARIO_LINESTYLES[index % len(SCENARIO_LINESTYLES)]
-    return {"color": _SCENARIO_COLOURS[index % len(_SCENARIO_COLOURS)], "linestyle": linestyle, "marker": marker,
-            "markevery": 5, "markersize": 4}
+    return {
+        "color": _SCENARIO_COLOURS[index % len(_SCENARIO_COLOURS)],
+        "linestyle": linestyle,
+        "marker": marker,
+        "markevery": 5,
+        "markersize": 4,
+    }

@@ -71,13 +71,16 @@ Results = RunResult | Sequence[RunResult]
 
 # --- helpers ---------------------------------------------------------------------------------------------------------
 
+
 def _as_list(results: Results) -> list[RunResult]:
     return [results] if isinstance(results, RunResult) else list(results)
 
 
 def _new_figure(rows: int = 1, height_ratios: Sequence[float] | None = None, height: float | None = None):
     fig = Figure(figsize=(_SIZE[0], height or _SIZE[1]), layout="constrained")
-    axes = fig.subplots(rows, 1, sharex=True, squeeze=False, gridspec_kw={"height_ratios": height_ratios})[:, 0]
+    axes = fig.subplots(rows, 1, sharex=True, squeeze=False, gridspec_kw={"height_ratios": height_ratios})[
+        :, 0
+    ]
     for ax in axes:
         ax.xaxis.set_major_locator(MaxNLocator(integer=True, steps=[1, 2, 5, 10]))
         ax.yaxis.set_major_formatter(FuncFormatter(_tick))
@@ -111,16 +114,32 @@ def _money(result: RunResult) -> str:
     return f"{currency} of {year}" if year else str(currency)
 
 
-def _legend(fig: Figure, handles: list, labels: list[str], title: str | None = None, below: bool = False) -> None:
+def _legend(
+    fig: Figure, handles: list, labels: list[str], title: str | None = None, below: bool = False
+) -> None:
     """Legend outside the axes: at the right (stacked charts, many technologies) or below (overlays)."""
     if not handles:
         return
     if below:
-        fig.legend(handles, labels, loc="outside lower center", frameon=False, fontsize="small",
-                   ncols=2 if len(handles) > 1 else 1)
+        fig.legend(
+            handles,
+            labels,
+            loc="outside lower center",
+            frameon=False,
+            fontsize="small",
+            ncols=2 if len(handles) > 1 else 1,
+        )
     else:
-        fig.legend(handles, labels, loc="outside right upper", frameon=False, title=title, fontsize="small",
-                   title_fontsize="small", alignment="left")
+        fig.legend(
+            handles,
+            labels,
+            loc="outside right upper",
+            frameon=False,
+            title=title,
+            fontsize="small",
+            title_fontsize="small",
+            alignment="left",
+        )
 
 
 def _title(ax, text: str) -> None:
@@ -144,9 +163,19 @@ def _stack(ax, years: np.ndarray, wide: pd.DataFrame, scale: float, style_key: C
     for column in wide.columns:
         values = np.clip(wide[column].to_numpy(dtype=float), 0.0, None) / scale
         colour, hatch = technology_style(style_key(column))
-        ax.fill_between(years, base, base + values, facecolor=colour, hatch=hatch, hatchcolor=_hatch_colour(colour),
-                        edgecolor="white", linewidth=0.4)
-        handles.append(Patch(facecolor=colour, hatch=hatch, hatchcolor=_hatch_colour(colour), edgecolor="white"))
+        ax.fill_between(
+            years,
+            base,
+            base + values,
+            facecolor=colour,
+            hatch=hatch,
+            hatchcolor=_hatch_colour(colour),
+            edgecolor="white",
+            linewidth=0.4,
+        )
+        handles.append(
+            Patch(facecolor=colour, hatch=hatch, hatchcolor=_hatch_colour(colour), edgecolor="white")
+        )
         base = base + values
     ax.set_xlim(years[0], years[-1]) if len(years) > 1 else None
     ax.set_ylim(bottom=0)
@@ -170,6 +199,7 @@ def _no_data(ax, text: str) -> None:
 
 
 # --- one scenario ----------------------------------------------------------------------------------------------------
+
 
 def capacity_figure(result: RunResult) -> Figure:
     """Capacity in service by technology [MW or GW], stacked; fuel converters (electrolysers, ...) in a lower panel
@@ -209,8 +239,10 @@ def additions_figure(result: RunResult) -> Figure:
     years = np.sort(cap["year"].unique())
     new = new.reindex(years, fill_value=0.0)
     retired = retired.reindex(years, fill_value=0.0)
-    largest = max(float(new.clip(lower=0).sum(axis=1).max()) if not new.empty else 0.0,
-                  float(retired.clip(lower=0).sum(axis=1).max()) if not retired.empty else 0.0)
+    largest = max(
+        float(new.clip(lower=0).sum(axis=1).max()) if not new.empty else 0.0,
+        float(retired.clip(lower=0).sum(axis=1).max()) if not retired.empty else 0.0,
+    )
     unit, scale = _power_unit(largest)
     fig, (ax,) = _new_figure()
     handles, labels = [], []
@@ -221,15 +253,36 @@ def additions_figure(result: RunResult) -> Figure:
         colour, hatch = technology_style(name)
         if name in new.columns:
             values = np.clip(new[name].to_numpy(dtype=float), 0.0, None) / scale
-            ax.bar(years, values, bottom=up, width=0.8, color=colour, hatch=hatch, hatchcolor=_hatch_colour(colour),
-                   edgecolor="white", linewidth=0.3)
+            ax.bar(
+                years,
+                values,
+                bottom=up,
+                width=0.8,
+                color=colour,
+                hatch=hatch,
+                hatchcolor=_hatch_colour(colour),
+                edgecolor="white",
+                linewidth=0.3,
+            )
             up = up + values
         if name in retired.columns:
             values = np.clip(retired[name].to_numpy(dtype=float), 0.0, None) / scale
-            ax.bar(years, -values, bottom=-down, width=0.8, color=colour, alpha=0.45, hatch=hatch,
-                   hatchcolor=_hatch_colour(colour), edgecolor="white", linewidth=0.3)
+            ax.bar(
+                years,
+                -values,
+                bottom=-down,
+                width=0.8,
+                color=colour,
+                alpha=0.45,
+                hatch=hatch,
+                hatchcolor=_hatch_colour(colour),
+                edgecolor="white",
+                linewidth=0.3,
+            )
             down = down + values
-        handles.append(Patch(facecolor=colour, hatch=hatch, hatchcolor=_hatch_colour(colour), edgecolor="white"))
+        handles.append(
+            Patch(facecolor=colour, hatch=hatch, hatchcolor=_hatch_colour(colour), edgecolor="white")
+        )
         labels.append(_label(name))
     if not retired.empty:
         handles.append(Patch(facecolor="#9a9a9a", alpha=0.45, edgecolor="white"))
@@ -268,9 +321,13 @@ def generation_figure(result: RunResult) -> Figure:
     (line,) = ax.plot(years, demand.to_numpy(), color="#111111", linestyle="--", linewidth=1.6)
     handles.append(line)
     labels.append("final electricity demand")
-    converters = el[el["kind"] == "converter"].groupby("year")["consumption_twh"].sum().reindex(years, fill_value=0.0)
+    converters = (
+        el[el["kind"] == "converter"].groupby("year")["consumption_twh"].sum().reindex(years, fill_value=0.0)
+    )
     if float(converters.max()) >= _SHOWN_ENERGY:
-        (line,) = ax.plot(years, (demand + converters).to_numpy(), color="#111111", linestyle=":", linewidth=1.6)
+        (line,) = ax.plot(
+            years, (demand + converters).to_numpy(), color="#111111", linestyle=":", linewidth=1.6
+        )
         handles.append(line)
         labels.append("demand incl. converters\n(electrolysers, ...)")
     ax.set_ylabel("Electricity generation [TWh/yr]")
@@ -294,12 +351,16 @@ def fuel_supply_figure(result: RunResult) -> Figure:
     sources["source"] = sources["technology"] + " (" + sources["commodity"] + ")"
     # supplies take their style from name and commodity (forest_residues (wood_chips)); converters from their name
     # alone, so a converter looks the same here as in the capacity figures
-    keys = {row.source: row.technology if row.role == "conversion_output" else f"{row.technology} {row.commodity}"
-            for row in sources[["source", "technology", "commodity", "role"]].drop_duplicates().itertuples()}
+    keys = {
+        row.source: row.technology if row.role == "conversion_output" else f"{row.technology} {row.commodity}"
+        for row in sources[["source", "technology", "commodity", "role"]].drop_duplicates().itertuples()
+    }
     wide = _wide(sources, "source", "energy_pj", _SHOWN_ENERGY).reindex(years, fill_value=0.0)
     handles = _stack(ax, years, wide, 1.0, lambda column: keys[column])
     labels = [_label(c) for c in wide.columns]
-    final = flows[flows["role"] == "final_use"].groupby("year")["energy_pj"].sum().reindex(years, fill_value=0.0)
+    final = (
+        flows[flows["role"] == "final_use"].groupby("year")["energy_pj"].sum().reindex(years, fill_value=0.0)
+    )
     if float(final.max()) >= _SHOWN_ENERGY:
         (line,) = ax.plot(years, final.to_numpy(), color="#111111", linestyle="--", linewidth=1.6)
         handles.append(line)
@@ -311,6 +372,7 @@ def fuel_supply_figure(result: RunResult) -> Figure:
 
 
 # --- overlays (one or several scenarios) ---------------------------------------------------------------------------
+
 
 def _has_budget(result: RunResult) -> bool:
     budget = result.summary.get("carbon_budget_mtco2")
@@ -360,7 +422,9 @@ def emissions_figure(results: Results) -> Figure:
             continue
         drawn.add(_budget_key(result))
         final = int(et["year"].iloc[-1])
-        start = max(int(et["year"].iloc[0]), int(result.summary.get("budget_first_year") or et["year"].iloc[0]))
+        start = max(
+            int(et["year"].iloc[0]), int(result.summary.get("budget_first_year") or et["year"].iloc[0])
+        )
         if start > final:
             continue
         row = required_rates_table(result, start_years=[start]).iloc[0]
@@ -374,15 +438,29 @@ def emissions_figure(results: Results) -> Figure:
         owner = f" ({label})" if len(paths) > 1 else ""
         e0, rate = float(row["emissions_at_start_mtco2"]), float(row["exponential_rate_per_year"])
         years = np.arange(start, final + 1)
-        (exp_line,) = ax.plot(years, e0 * (1.0 - rate) ** (years - start), color=colour, linestyle=(0, (5, 2)),
-                              linewidth=1.3, gid=f"exponential_path_{k}")
+        (exp_line,) = ax.plot(
+            years,
+            e0 * (1.0 - rate) ** (years - start),
+            color=colour,
+            linestyle=(0, (5, 2)),
+            linewidth=1.3,
+            gid=f"exponential_path_{k}",
+        )
         handles.append(exp_line)
-        names.append(f"exponential path within the {budget:,.0f} MtCO2\nbudget{owner}: {100 * rate:.1f} % less each year")
+        names.append(
+            f"exponential path within the {budget:,.0f} MtCO2\nbudget{owner}: {100 * rate:.1f} % less each year"
+        )
         end = float(row["linear_end_year"])
         if np.isfinite(end) and end > start:
             stop = min(end, float(final))
-            (lin_line,) = ax.plot([start, stop], [e0, e0 * (1.0 - (stop - start) / (end - start))], color=colour,
-                                  linestyle=(0, (1, 1.5)), linewidth=1.6, gid=f"linear_path_{k}")
+            (lin_line,) = ax.plot(
+                [start, stop],
+                [e0, e0 * (1.0 - (stop - start) / (end - start))],
+                color=colour,
+                linestyle=(0, (1, 1.5)),
+                linewidth=1.6,
+                gid=f"linear_path_{k}",
+            )
             handles.append(lin_line)
             names.append(f"straight line within the {budget:,.0f} MtCO2\nbudget{owner}: zero in {end:.0f}")
     ax.set_ylim(bottom=0)
@@ -405,7 +483,11 @@ def cumulative_emissions_figure(results: Results) -> Figure:
     budgets: dict[tuple, str] = {}
     for i, (result, label) in enumerate(zip(results, labels, strict=True)):
         style = _style(i, len(results))
-        borrowed = None if _has_budget(result) or reference is None else float(reference[0].summary["carbon_budget_mtco2"])
+        borrowed = (
+            None
+            if _has_budget(result) or reference is None
+            else float(reference[0].summary["carbon_budget_mtco2"])
+        )
         account = budget_accounting(result, budget_mt=borrowed)
         table = account.table
         (line,) = ax.plot(table["year"], table["cumulative_mtco2"], **style)
@@ -416,16 +498,34 @@ def cumulative_emissions_figure(results: Results) -> Figure:
         if account.exhaustion_year is not None:
             year = int(account.exhaustion_year)
             value = float(table.loc[table["year"] == year, "cumulative_mtco2"].iloc[0])
-            ax.plot([year], [value], marker="X", markersize=10, color=style["color"], linestyle="none",
-                    markeredgecolor="white", zorder=5)
-            ax.annotate(f"budget used up in {year}", (year, value), xytext=(10, -14), textcoords="offset points",
-                        ha="left", va="top", fontsize="small", color=style["color"],
-                        bbox={"facecolor": "white", "edgecolor": "none", "alpha": 0.85, "pad": 1.5})
+            ax.plot(
+                [year],
+                [value],
+                marker="X",
+                markersize=10,
+                color=style["color"],
+                linestyle="none",
+                markeredgecolor="white",
+                zorder=5,
+            )
+            ax.annotate(
+                f"budget used up in {year}",
+                (year, value),
+                xytext=(10, -14),
+                textcoords="offset points",
+                ha="left",
+                va="top",
+                fontsize="small",
+                color=style["color"],
+                bbox={"facecolor": "white", "edgecolor": "none", "alpha": 0.85, "pad": 1.5},
+            )
     for (budget, first, last), owner in budgets.items():
         line = ax.axhline(budget, color="#555555", linestyle=(0, (6, 3)), linewidth=1.2)
         handles.append(line)
         period = f" {first}-{last}" if first is not None else ""
-        names.append(f"carbon budget{period}: {budget:,.0f} MtCO2" + (f" ({owner})" if len(budgets) > 1 else ""))
+        names.append(
+            f"carbon budget{period}: {budget:,.0f} MtCO2" + (f" ({owner})" if len(budgets) > 1 else "")
+        )
     ax.set_ylim(bottom=0)
     _span(ax, results)
     ax.set_ylabel("Cumulative CO2 emissions [MtCO2]")
@@ -434,7 +534,9 @@ def cumulative_emissions_figure(results: Results) -> Figure:
     return fig
 
 
-_RATE_CAP = 40.0  # [%/yr] the rate axis stops here when some rates go far beyond (they are written at the top)
+_RATE_CAP = (
+    40.0  # [%/yr] the rate axis stops here when some rates go far beyond (they are written at the top)
+)
 
 
 def required_rate_figure(results: Results) -> Figure:
@@ -479,17 +581,36 @@ def required_rate_figure(results: Results) -> Figure:
             for year, value in zip(years[shown], rate[shown], strict=True):
                 if value > cap and (int(year), f"{value:.0f}") not in written:
                     written.add((int(year), f"{value:.0f}"))
-                    ax.annotate(f"{value:.0f} %", (year, cap), xytext=(0, 2), textcoords="offset points", ha="center",
-                                va="bottom", fontsize="small", color=colour, annotation_clip=False)
+                    ax.annotate(
+                        f"{value:.0f} %",
+                        (year, cap),
+                        xytext=(0, 2),
+                        textcoords="offset points",
+                        ha="center",
+                        va="bottom",
+                        fontsize="small",
+                        color=colour,
+                        annotation_clip=False,
+                    )
         if exhausted.any():
             last = np.flatnonzero(shown)[-1]
             value = min(rate[last], cap) if cap is not None else rate[last]
-            ax.annotate(f"budget used up\nbefore {years[exhausted][0]}", (years[last], value), xytext=(6, 0),
-                        textcoords="offset points", ha="left", va="center", fontsize="small", color=colour)
+            ax.annotate(
+                f"budget used up\nbefore {years[exhausted][0]}",
+                (years[last], value),
+                xytext=(6, 0),
+                textcoords="offset points",
+                ha="left",
+                va="center",
+                fontsize="small",
+                color=colour,
+            )
     ax.set_ylim(0, cap) if cap is not None else ax.set_ylim(bottom=0)
     _span(ax, results)
     ax.set_xlabel("Year the decline starts")
-    ax.set_ylabel("Required reduction rate [%/yr]" + (f"\n(axis cut at {cap:.0f} %/yr)" if cap is not None else ""))
+    ax.set_ylabel(
+        "Required reduction rate [%/yr]" + (f"\n(axis cut at {cap:.0f} %/yr)" if cap is not None else "")
+    )
     _title(ax, "Required CO2 reduction rate by start year (cost of delay)")
     _legend(fig, handles, names, below=True)
     return fig
@@ -508,7 +629,9 @@ def carbon_price_figure(results: Results) -> Figure:
         (line,) = ax.plot(price["year"], price["carbon_price_per_tco2"], **_style(i, len(results)))
         handles.append(line)
         names.append(label if len(money) == 1 else f"{label} ({_money(result)})")
-    top = max(float(r.carbon_price["carbon_price_per_tco2"].max()) if len(r.carbon_price) else 0.0 for r in results)
+    top = max(
+        float(r.carbon_price["carbon_price_per_tco2"].max()) if len(r.carbon_price) else 0.0 for r in results
+    )
     if not top > 1e-9:
         ax.set_ylim(0, 1)
         _no_data(ax, "no carbon price: no budget, cap or price path binds")
@@ -526,6 +649,7 @@ def carbon_price_figure(results: Results) -> Figure:
 
 
 # --- saving and sets --------------------------------------------------------------------------------------------------
+
 
 def save_figure(fig: Figure, folder: Path | str, name: str) -> tuple[Path, Path]:
     """Write ``fig`` as ``folder/name.png`` (DPI dots per inch) and ``folder/name.svg``; returns both paths. The files

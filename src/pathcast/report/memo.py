@@ -42,18 +42,45 @@ from .console import CAUTION
 from .figures import OVERLAY_FIGURES, SCENARIO_FIGURES, save_figure
 
 __all__ = [
-    "MemoInput", "MemoEnsemble", "Memo", "Heading", "Paragraph", "Table", "FigureBlock", "ImageFile", "build_memo",
-    "render_markdown", "render_html", "write_memo", "format_value", "headline_rows", "section_blocks", "MISSING",
+    "MemoInput",
+    "MemoEnsemble",
+    "Memo",
+    "Heading",
+    "Paragraph",
+    "Table",
+    "FigureBlock",
+    "ImageFile",
+    "build_memo",
+    "render_markdown",
+    "render_html",
+    "write_memo",
+    "format_value",
+    "headline_rows",
+    "section_blocks",
+    "MISSING",
 ]
 
-MISSING = "n/a"  # shown where a value does not apply (no budget, metric of another scenario's technology, ...)
-_YEAR_ROWS = {"base_year", "final_year", "price_year", "budget_first_year", "budget_last_year",
-              "budget_exhaustion_year", "required_rate_start_year"}
-_PERCENT_ROWS = {"required_rate_from_start_per_year", "required_rate_from_start_plus_5_per_year",
-                 "realised_compound_rate_per_year"}
+MISSING = (
+    "n/a"  # shown where a value does not apply (no budget, metric of another scenario's technology, ...)
+)
+_YEAR_ROWS = {
+    "base_year",
+    "final_year",
+    "price_year",
+    "budget_first_year",
+    "budget_last_year",
+    "budget_exhaustion_year",
+    "required_rate_start_year",
+}
+_PERCENT_ROWS = {
+    "required_rate_from_start_per_year",
+    "required_rate_from_start_plus_5_per_year",
+    "realised_compound_rate_per_year",
+}
 
 
 # --- blocks ----------------------------------------------------------------------------------------------------------
+
 
 @dataclass(frozen=True)
 class Heading:
@@ -125,7 +152,9 @@ class MemoEnsemble:
     members: int
     solved: int
     infeasible: int
-    failed_other: int  # failed for another reason than infeasibility (invalid member, solver status, worker lost)
+    failed_other: (
+        int  # failed for another reason than infeasibility (invalid member, solver status, worker lost)
+    )
     pending: int
     within_budget: int
     probability_within_budget: float
@@ -135,12 +164,15 @@ class MemoEnsemble:
     cost_p95: float
     currency: str
     price_year: object
-    figure_files: Mapping[str, Path] = field(default_factory=dict)  # figure stem -> PNG under the ensemble's figures/
+    figure_files: Mapping[str, Path] = field(
+        default_factory=dict
+    )  # figure stem -> PNG under the ensemble's figures/
     pathcast_version: str = ""
     illustrative: bool = False
 
 
 # --- numbers ---------------------------------------------------------------------------------------------------------
+
 
 def format_value(value: object, metric: str = "") -> str:
     """Display text of a table value (see the module docstring for the rounding)."""
@@ -189,6 +221,7 @@ def _money(value: float, currency: str) -> str:
 
 # --- headline rows -----------------------------------------------------------------------------------------------
 
+
 def headline_rows(results: Sequence[RunResult]) -> pd.DataFrame:
     """The memo's headline table: :func:`pathcast.results.compare.compare` plus every summary.json key it does not
     already hold (so the memo carries every headline number of every run); dict-valued summary keys appear as
@@ -215,16 +248,25 @@ def headline_rows(results: Sequence[RunResult]) -> pd.DataFrame:
 
 def _table_from(frame: pd.DataFrame, caption: str, first_header: str = "") -> Table:
     header = (first_header, *[str(c) for c in frame.columns])
-    rows = tuple((metric_label(str(metric)), *[format_value(v, str(metric)) for v in row])
-                 for metric, row in zip(frame.index, frame.itertuples(index=False), strict=True))
+    rows = tuple(
+        (metric_label(str(metric)), *[format_value(v, str(metric)) for v in row])
+        for metric, row in zip(frame.index, frame.itertuples(index=False), strict=True)
+    )
     return Table(header, rows, caption)
 
 
 # --- findings --------------------------------------------------------------------------------------------------------
 
+
 def _mix_text(mix: Mapping[str, float], unit: str, shares: bool) -> str:
-    shown = sorted(((k, float(v)) for k, v in mix.items() if float(v) > 0.5e-3 * max(1.0, max(map(float, mix.values())))),
-                   key=lambda kv: -kv[1])
+    shown = sorted(
+        (
+            (k, float(v))
+            for k, v in mix.items()
+            if float(v) > 0.5e-3 * max(1.0, max(map(float, mix.values())))
+        ),
+        key=lambda kv: -kv[1],
+    )
     total = sum(v for _, v in shown)
     parts = []
     for name, value in shown[:5]:
@@ -239,11 +281,13 @@ def _finding(result: RunResult, label: str, column: pd.Series, results: Sequence
     s = result.summary
     currency = s.get("currency", "")
     base, final = s["base_year"], s["final_year"]
-    text = [f"{label} ({base}-{final}, {currency} of {s.get('price_year')}): the least-cost pathway costs "
-            f"{_money(s['total_discounted_cost_million'], currency)} (total discounted system cost) and emits "
-            f"{_number(s['cumulative_emissions_mtco2'])} MtCO2 over {base}-{final}, from "
-            f"{_number(s['first_year_emissions_mtco2'])} MtCO2/yr in {base} to "
-            f"{_number(s['final_year_emissions_mtco2'])} MtCO2/yr in {final}."]
+    text = [
+        f"{label} ({base}-{final}, {currency} of {s.get('price_year')}): the least-cost pathway costs "
+        f"{_money(s['total_discounted_cost_million'], currency)} (total discounted system cost) and emits "
+        f"{_number(s['cumulative_emissions_mtco2'])} MtCO2 over {base}-{final}, from "
+        f"{_number(s['first_year_emissions_mtco2'])} MtCO2/yr in {base} to "
+        f"{_number(s['final_year_emissions_mtco2'])} MtCO2/yr in {final}."
+    ]
     budget = s.get("carbon_budget_mtco2")
     compared = column.get("comparison_budget_mtco2")
     owner = column.get("comparison_budget_of")
@@ -260,11 +304,15 @@ def _finding(result: RunResult, label: str, column: pd.Series, results: Sequence
                 text[-1] += " and uses it up exactly by the end of the budget period"
             else:
                 word = "headroom" if float(headroom) > 0 else "overshoot"
-                text[-1] += f" ({word} of {_number(abs(float(headroom)))} MtCO2 at the end of the budget period)"
+                text[-1] += (
+                    f" ({word} of {_number(abs(float(headroom)))} MtCO2 at the end of the budget period)"
+                )
         text[-1] += "."
     elif compared is not None and not _nan(compared):
-        text.append(f"It has no carbon budget of its own; measured against the {_number(compared)} MtCO2 budget of "
-                    f"{owner} over its horizon, ")
+        text.append(
+            f"It has no carbon budget of its own; measured against the {_number(compared)} MtCO2 budget of "
+            f"{owner} over its horizon, "
+        )
         if exhaustion is not None and not _nan(exhaustion):
             text[-1] += f"it would use that budget up in {int(exhaustion)}"
         else:
@@ -274,38 +322,55 @@ def _finding(result: RunResult, label: str, column: pd.Series, results: Sequence
             text[-1] += f", with {word} of {_number(abs(float(headroom)))} MtCO2 by {final}"
         text[-1] += "."
     else:
-        text.append("It has no carbon budget, and none of the scenarios in this memo has one to measure it against.")
+        text.append(
+            "It has no carbon budget, and none of the scenarios in this memo has one to measure it against."
+        )
     rate0 = column.get("required_rate_from_start_per_year")
     start = column.get("required_rate_start_year")
     if rate0 is not None and not _nan(rate0):
-        sentence = (f"Staying within the budget from {int(start)} requires emissions to fall by "
-                    f"{format_value(rate0, 'required_rate_from_start_per_year')} %/yr (exponential decline)")
+        sentence = (
+            f"Staying within the budget from {int(start)} requires emissions to fall by "
+            f"{format_value(rate0, 'required_rate_from_start_per_year')} %/yr (exponential decline)"
+        )
         rate5 = column.get("required_rate_from_start_plus_5_per_year")
         if rate5 is not None and not _nan(rate5):
             sentence += f", or {format_value(rate5, 'required_rate_from_start_plus_5_per_year')} %/yr if the decline starts in {int(start) + 5}"
         text.append(sentence + ".")
     realised = column.get("realised_compound_rate_per_year")
     if realised is not None and not _nan(realised):
-        text.append(f"The pathway's own compound reduction from {base} to {final} is "
-                    f"{format_value(realised, 'realised_compound_rate_per_year')} %/yr.")
-    text.append(f"In {final} the capacity in service is {_mix_text(s.get('final_year_capacity_mw', {}), 'MW', False)}; "
-                f"electricity generation is {_mix_text(s.get('final_year_generation_twh', {}), 'TWh', True)}.")
+        text.append(
+            f"The pathway's own compound reduction from {base} to {final} is "
+            f"{format_value(realised, 'realised_compound_rate_per_year')} %/yr."
+        )
+    text.append(
+        f"In {final} the capacity in service is {_mix_text(s.get('final_year_capacity_mw', {}), 'MW', False)}; "
+        f"electricity generation is {_mix_text(s.get('final_year_generation_twh', {}), 'TWh', True)}."
+    )
     first, last = milestone_years(result)
     prices = [carbon_price_in(result, year) for year in (first, last)]
     if all(abs(p) < 1e-9 for p in prices if not _nan(p)):
         text.append(f"No carbon price binds (0 {currency}/tCO2 in {first} and {last}).")
     else:
-        text.append(f"The carbon price is {_number(prices[0])} {currency}/tCO2 in {first} and "
-                    f"{_number(prices[1])} {currency}/tCO2 in {last}.")
+        text.append(
+            f"The carbon price is {_number(prices[0])} {currency}/tCO2 in {first} and "
+            f"{_number(prices[1])} {currency}/tCO2 in {last}."
+        )
     cost = column.get("abatement_cost_per_tco2")
     if len(results) > 1 and cost is not None and not _nan(cost):
-        text.append(f"Against {scenario_labels(results)[0]} it abates CO2 at an average "
-                    f"{_number(cost)} {currency}/tCO2.")
-    unserved_el, unserved_fuel = float(s.get("unserved_electricity_twh") or 0), float(s.get("unserved_fuel_pj") or 0)
+        text.append(
+            f"Against {scenario_labels(results)[0]} it abates CO2 at an average "
+            f"{_number(cost)} {currency}/tCO2."
+        )
+    unserved_el, unserved_fuel = (
+        float(s.get("unserved_electricity_twh") or 0),
+        float(s.get("unserved_fuel_pj") or 0),
+    )
     if unserved_el > 1e-6 or unserved_fuel > 1e-6:
-        text.append(f"Some demand is left unserved ({_number(unserved_el)} TWh of electricity, "
-                    f"{_number(unserved_fuel)} PJ of fuels over the horizon): the inputs cannot meet it at any cost "
-                    "within the limits set.")
+        text.append(
+            f"Some demand is left unserved ({_number(unserved_el)} TWh of electricity, "
+            f"{_number(unserved_fuel)} PJ of fuels over the horizon): the inputs cannot meet it at any cost "
+            "within the limits set."
+        )
     return " ".join(text)
 
 
@@ -321,21 +386,30 @@ def _ensemble_finding(ensemble: MemoEnsemble, around: str) -> str:
     e = ensemble
     other = f", {e.failed_other} failed otherwise" if e.failed_other else ""
     pending = f", {e.pending} not yet run" if e.pending else ""
-    text = [f"Across the ensemble {e.name} ({e.members} members varying {len(e.inputs)} "
-            f"input{'s' if len(e.inputs) != 1 else ''} around {around}; {e.solved} solved, {e.infeasible} "
-            f"infeasible{other}{pending}),"]
+    text = [
+        f"Across the ensemble {e.name} ({e.members} members varying {len(e.inputs)} "
+        f"input{'s' if len(e.inputs) != 1 else ''} around {around}; {e.solved} solved, {e.infeasible} "
+        f"infeasible{other}{pending}),"
+    ]
     counted = e.solved + e.infeasible
     if not _nan(e.probability_within_budget) and counted:
-        budget = (f"the {_number(float(e.reference_budget_mt))} MtCO2 budget" if e.reference_budget_mt is not None
-                  else "the carbon budget")
-        text.append(f"the probability of staying within {budget} is {100 * float(e.probability_within_budget):.0f} % "
-                    f"({e.within_budget} of {counted} members)")
+        budget = (
+            f"the {_number(float(e.reference_budget_mt))} MtCO2 budget"
+            if e.reference_budget_mt is not None
+            else "the carbon budget"
+        )
+        text.append(
+            f"the probability of staying within {budget} is {100 * float(e.probability_within_budget):.0f} % "
+            f"({e.within_budget} of {counted} members)"
+        )
     else:
         text.append("no member has a carbon budget, so there is no probability of staying within one")
     if not any(_nan(v) for v in (e.cost_p5, e.cost_p95)):
         money = f"million {e.currency}" + (f" of {e.price_year}" if e.price_year else "")
-        text[-1] += (f", and the total discounted system cost ranges from {_number(e.cost_p5)} to "
-                     f"{_number(e.cost_p95)} {money} (5-95 %, median {_number(e.cost_p50)}).")
+        text[-1] += (
+            f", and the total discounted system cost ranges from {_number(e.cost_p5)} to "
+            f"{_number(e.cost_p95)} {money} (5-95 %, median {_number(e.cost_p50)})."
+        )
     else:
         text[-1] += "; no member solved, so there is no range of the total cost."
     return " ".join(text)
@@ -345,15 +419,15 @@ _IMAGE = re.compile(r"^!\[(?P<alt>[^\]]*)\]\((?P<path>[^)]+)\)$")
 _RULE = re.compile(r"^\|[\s:|-]+\|$")
 _ENSEMBLE_CAPTIONS = {
     "emissions_fan": "Yearly CO2 emissions [MtCO2/yr] and cumulative CO2 in the budget period [MtCO2] across the "
-                     "members: median, 25-75 % and 5-95 % bands, against the budget.",
+    "members: median, 25-75 % and 5-95 % bands, against the budget.",
     "capacity_fan": "Capacity in service by technology [GW] across the members: median, 25-75 % and 5-95 % bands, one "
-                    "panel per technology.",
+    "panel per technology.",
     "distributions": "Distributions over the solved members of the total discounted system cost and of the required "
-                     "reduction rate, with the median, the 5 % and 95 % percentiles and the base scenario.",
+    "reduction rate, with the median, the 5 % and 95 % percentiles and the base scenario.",
     "budget_probability": "Budget margin (budget minus emissions in the budget period) [MtCO2] across the solved "
-                          "members and the probability of staying within the carbon budget.",
+    "members and the probability of staying within the carbon budget.",
     "tornado": "One-at-a-time sensitivities: change of the total cost and of cumulative CO2 from the base scenario at "
-               "each input's low and high value.",
+    "each input's low and high value.",
 }
 
 
@@ -397,12 +471,21 @@ def section_blocks(markdown: str, ensemble: MemoEnsemble, prefix: str, first_num
             if source.is_file():
                 number += 1
                 caption = _ENSEMBLE_CAPTIONS.get(source.stem, image["alt"].rstrip(".") + ".")
-                blocks.append(ImageFile(f"{prefix}_{source.stem}", source,
-                                        f"Figure {number}. Ensemble {ensemble.name}: {caption}"))
+                blocks.append(
+                    ImageFile(
+                        f"{prefix}_{source.stem}",
+                        source,
+                        f"Figure {number}. Ensemble {ensemble.name}: {caption}",
+                    )
+                )
             else:
-                blocks.append(Paragraph(f"(The figure {source.name} is not in {source.parent}: the ensemble was run "
-                                        "without figures; run 'pathcast ensemble' again without --no-figures to draw "
-                                        "it.)"))
+                blocks.append(
+                    Paragraph(
+                        f"(The figure {source.name} is not in {source.parent}: the ensemble was run "
+                        "without figures; run 'pathcast ensemble' again without --no-figures to draw "
+                        "it.)"
+                    )
+                )
             last_image = len(blocks)
         elif line.startswith("|"):
             table.append(line)
@@ -413,14 +496,20 @@ def section_blocks(markdown: str, ensemble: MemoEnsemble, prefix: str, first_num
     flush()
     extra = []
     known = list(_ENSEMBLE_CAPTIONS)
-    order = sorted(ensemble.figure_files, key=lambda stem: (known.index(stem) if stem in known else len(known), stem))
+    order = sorted(
+        ensemble.figure_files, key=lambda stem: (known.index(stem) if stem in known else len(known), stem)
+    )
     for stem in order:
         source = ensemble.figure_files[stem]
         if stem in linked:
             continue
         number += 1
         caption = _ENSEMBLE_CAPTIONS.get(stem, f"figure {stem} of the ensemble folder.")
-        extra.append(ImageFile(f"{prefix}_{stem}", Path(source), f"Figure {number}. Ensemble {ensemble.name}: {caption}"))
+        extra.append(
+            ImageFile(
+                f"{prefix}_{stem}", Path(source), f"Figure {number}. Ensemble {ensemble.name}: {caption}"
+            )
+        )
     at = last_image if last_image is not None else len(blocks)
     return blocks[:at] + extra + blocks[at:]
 
@@ -429,30 +518,31 @@ def section_blocks(markdown: str, ensemble: MemoEnsemble, prefix: str, first_num
 
 _SCENARIO_CAPTIONS = {
     "capacity": "Capacity in service by technology; fuel converters (electrolysers, fuel synthesis, ...) in the lower "
-                "panel, counted on their input side.",
+    "panel, counted on their input side.",
     "additions": "Capacity added each year by technology (above zero) and capacity retired at the end of its life or "
-                 "early (lighter bars, below zero).",
+    "early (lighter bars, below zero).",
     "generation": "Electricity generation by generator [TWh/yr], with final electricity demand (dashed) and demand "
-                  "including converters such as electrolysers (dotted); the gap to the top of the stack is storage "
-                  "losses.",
+    "including converters such as electrolysers (dotted); the gap to the top of the stack is storage "
+    "losses.",
     "fuel_supply": "Fuel supply by source and converter output [PJ/yr], gross (a converter's output can be another "
-                   "converter's input), with final fuel use (dashed).",
+    "converter's input), with final fuel use (dashed).",
 }
 _OVERLAY_CAPTIONS = {
     "emissions": "Yearly CO2 emissions [MtCO2/yr], with two reference paths for each carbon budget that spend it "
-                 "exactly from its first year: a constant exponential decline at the required rate (emissions after the "
-                 "budget period count too, as for a budget of all remaining time) and a straight line to zero.",
+    "exactly from its first year: a constant exponential decline at the required rate (emissions after the "
+    "budget period count too, as for a budget of all remaining time) and a straight line to zero.",
     "cumulative_emissions": "Cumulative CO2 emissions [MtCO2] over the budget period against the carbon budget; a "
-                            "cross marks the year the budget is used up. Scenarios without a budget are counted over "
-                            "their horizon against the first budget shown.",
+    "cross marks the year the budget is used up. Scenarios without a budget are counted over "
+    "their horizon against the first budget shown.",
     "required_rate": "Required exponential reduction rate [%/yr] if emissions follow the scenario until the year shown "
-                     "and then decline at a constant rate that just fits the remaining budget: the cost of delay.",
+    "and then decline at a constant rate that just fits the remaining budget: the cost of delay.",
     "carbon_price": "Carbon price [currency/tCO2, real money of the price year]: the shadow price of the carbon budget "
-                    "and caps plus any carbon price path of the scenario.",
+    "and caps plus any carbon price path of the scenario.",
 }
 
 
 # --- assumptions -----------------------------------------------------------------------------------------------------
+
 
 def _assumption_tables(inputs: Sequence[MemoInput], labels: list[str]) -> list:
     blocks: list = []
@@ -484,11 +574,14 @@ def _assumption_tables(inputs: Sequence[MemoInput], labels: list[str]) -> list:
         if changes.empty:
             blocks.append(Paragraph(f"{label} uses the same assumptions as {labels[0]}."))
         else:
-            blocks.append(Table(header, rows_of(changes), f"Assumptions of {label} that differ from {labels[0]}."))
+            blocks.append(
+                Table(header, rows_of(changes), f"Assumptions of {label} that differ from {labels[0]}.")
+            )
     return blocks
 
 
 # --- build -----------------------------------------------------------------------------------------------------------
+
 
 def build_memo(inputs: Sequence[MemoInput], ensembles: Sequence[MemoEnsemble] = ()) -> Memo:
     """The memo of one or several runs (the first is the reference for abatement costs and assumption changes) and of
@@ -502,16 +595,25 @@ def build_memo(inputs: Sequence[MemoInput], ensembles: Sequence[MemoEnsemble] = 
     first_meta = results[0].metadata if results else {}
     country = first_meta.get("country") or ""
     named = labels + [f"ensemble {e.name}" for e in ensembles]
-    title = "Decarbonisation pathway memo" + (f": {country}" if country else "") + " (" + ", ".join(named) + ")"
+    title = (
+        "Decarbonisation pathway memo" + (f": {country}" if country else "") + " (" + ", ".join(named) + ")"
+    )
     blocks: list = []
     illustrative = [label for r, label in zip(results, labels, strict=True) if r.metadata.get("illustrative")]
     illustrative += [f"ensemble {e.name}" for e in ensembles if e.illustrative]
     if illustrative:
         who = "all scenarios" if len(illustrative) == len(named) else ", ".join(illustrative)
-        blocks.append(Paragraph(f"Illustrative numbers: the inputs of {who} are marked illustrative (invented or "
-                                "rounded for demonstration); the results show how the pathway responds to them and are "
-                                "no estimate for any real country or system.", kind="notice"))
-    findings = [_finding(result, label, table[label], results) for result, label in zip(results, labels, strict=True)]
+        blocks.append(
+            Paragraph(
+                f"Illustrative numbers: the inputs of {who} are marked illustrative (invented or "
+                "rounded for demonstration); the results show how the pathway responds to them and are "
+                "no estimate for any real country or system.",
+                kind="notice",
+            )
+        )
+    findings = [
+        _finding(result, label, table[label], results) for result, label in zip(results, labels, strict=True)
+    ]
     for ensemble in ensembles:
         hashes = [str(r.manifest.get("input_hash", "")) for r in results]
         if ensemble.base_hash and ensemble.base_hash in hashes:
@@ -524,12 +626,14 @@ def build_memo(inputs: Sequence[MemoInput], ensembles: Sequence[MemoEnsemble] = 
     number = 0
     if results:
         blocks.append(Heading("Headline figures" if len(results) == 1 else "Comparison of the scenarios"))
-        caption = ("Headline figures of the run (every number of summary.json, with the budget and reduction-rate "
-                   "analytics); money in million of the currency of the price year, rates in %/yr."
-                   if len(results) == 1 else
-                   f"Side by side (every number of each summary.json, with the budget and reduction-rate analytics); "
-                   f"money in million of the currency of the price year, rates in %/yr; abatement cost against "
-                   f"{labels[0]}.")
+        caption = (
+            "Headline figures of the run (every number of summary.json, with the budget and reduction-rate "
+            "analytics); money in million of the currency of the price year, rates in %/yr."
+            if len(results) == 1
+            else f"Side by side (every number of each summary.json, with the budget and reduction-rate analytics); "
+            f"money in million of the currency of the price year, rates in %/yr; abatement cost against "
+            f"{labels[0]}."
+        )
         blocks.append(_table_from(table, caption))
         blocks.append(Heading("Figures"))
         for result, label in zip(results, labels, strict=True):
@@ -537,17 +641,26 @@ def build_memo(inputs: Sequence[MemoInput], ensembles: Sequence[MemoEnsemble] = 
                 blocks.append(Heading(label, 3))
             for name, draw in SCENARIO_FIGURES.items():
                 number += 1
-                blocks.append(FigureBlock(f"{_slug(label)}_{name}", draw(result),
-                                          f"Figure {number}. {label}: {_SCENARIO_CAPTIONS[name]}"))
+                blocks.append(
+                    FigureBlock(
+                        f"{_slug(label)}_{name}",
+                        draw(result),
+                        f"Figure {number}. {label}: {_SCENARIO_CAPTIONS[name]}",
+                    )
+                )
         if len(results) > 1:
             blocks.append(Heading("All scenarios", 3))
         for name, draw in OVERLAY_FIGURES.items():
             number += 1
             blocks.append(FigureBlock(name, draw(results), f"Figure {number}. {_OVERLAY_CAPTIONS[name]}"))
     else:
-        blocks.append(Paragraph("This memo covers ensembles only: the pathway, headline figures, figures and "
-                                "assumptions of a base scenario are shown when its scenario file or result folder is "
-                                "given as well."))
+        blocks.append(
+            Paragraph(
+                "This memo covers ensembles only: the pathway, headline figures, figures and "
+                "assumptions of a base scenario are shown when its scenario file or result folder is "
+                "given as well."
+            )
+        )
     prefixes: set[str] = set()
     for ensemble in ensembles:
         prefix = stem = f"ensemble_{_slug(ensemble.name)}"
@@ -564,9 +677,13 @@ def build_memo(inputs: Sequence[MemoInput], ensembles: Sequence[MemoEnsemble] = 
         blocks.extend(_assumption_tables(inputs, labels))
     blocks.append(Heading("Cautions"))
     blocks.append(Paragraph(CAUTION, kind="caution"))
-    blocks.append(Paragraph("Numbers in this memo are rounded for display; the result folders hold the exact values. "
-                            "A budget overshoot, unserved demand or a carbon price at the limits of the inputs signals "
-                            "that the targets and the technology options of a scenario do not fit together."))
+    blocks.append(
+        Paragraph(
+            "Numbers in this memo are rounded for display; the result folders hold the exact values. "
+            "A budget overshoot, unserved demand or a carbon price at the limits of the inputs signals "
+            "that the targets and the technology options of a scenario do not fit together."
+        )
+    )
     blocks.append(Heading("Provenance"))
     if results:
         rows = []
@@ -574,16 +691,47 @@ def build_memo(inputs: Sequence[MemoInput], ensembles: Sequence[MemoEnsemble] = 
             manifest = result.manifest
             solver = manifest.get("solver", {}) or {}
             versions = manifest.get("versions", {}) or {}
-            rows.append((label, str(manifest.get("source", "")), str(manifest.get("input_hash", ""))[:12],
-                         str(solver.get("status", "")), str(versions.get("pathcast", ""))))
-        blocks.append(Table(("scenario", "scenario file", "input hash", "solver status", "pathcast"), tuple(rows)))
+            rows.append(
+                (
+                    label,
+                    str(manifest.get("source", "")),
+                    str(manifest.get("input_hash", ""))[:12],
+                    str(solver.get("status", "")),
+                    str(versions.get("pathcast", "")),
+                )
+            )
+        blocks.append(
+            Table(("scenario", "scenario file", "input hash", "solver status", "pathcast"), tuple(rows))
+        )
     if ensembles:
-        rows = [(e.name, str(e.folder), e.file, e.base, e.base_hash[:12], f"{e.solved} of {e.members}",
-                 e.pathcast_version) for e in ensembles]
-        blocks.append(Table(("ensemble", "ensemble folder", "ensemble file", "base scenario file", "base input hash",
-                             "members solved", "pathcast"), tuple(rows),
-                            "Ensembles: each member's record is stored in the folder's members/ (one JSON file per "
-                            "member, named by the hash of its scenario)."))
+        rows = [
+            (
+                e.name,
+                str(e.folder),
+                e.file,
+                e.base,
+                e.base_hash[:12],
+                f"{e.solved} of {e.members}",
+                e.pathcast_version,
+            )
+            for e in ensembles
+        ]
+        blocks.append(
+            Table(
+                (
+                    "ensemble",
+                    "ensemble folder",
+                    "ensemble file",
+                    "base scenario file",
+                    "base input hash",
+                    "members solved",
+                    "pathcast",
+                ),
+                tuple(rows),
+                "Ensembles: each member's record is stored in the folder's members/ (one JSON file per "
+                "member, named by the hash of its scenario).",
+            )
+        )
     return Memo(title, tuple(blocks))
 
 
@@ -592,6 +740,7 @@ def _slug(label: str) -> str:
 
 
 # --- render ----------------------------------------------------------------------------------------------------------
+
 
 def _md_cell(text: str) -> str:
     return text.replace("|", "\\|").replace("\n", " ")
@@ -615,7 +764,12 @@ def render_markdown(memo: Memo, figure_folder: str = "figures") -> str:
             if block.caption:
                 lines += [f"*{block.caption}*", ""]
         elif isinstance(block, FigureBlock | ImageFile):
-            lines += [f"![{block.caption.split('.')[0]}]({figure_folder}/{block.name}.png)", "", f"*{block.caption}*", ""]
+            lines += [
+                f"![{block.caption.split('.')[0]}]({figure_folder}/{block.name}.png)",
+                "",
+                f"*{block.caption}*",
+                "",
+            ]
     return "\n".join(lines).rstrip() + "\n"
 
 
@@ -654,9 +808,18 @@ def _inline_html(text: str) -> str:
 def render_html(memo: Memo, pngs: Mapping[str, bytes]) -> str:
     """Self-contained HTML of ``memo``: ``pngs`` maps each figure name to its PNG bytes, embedded as data URIs."""
     esc = html.escape
-    parts = ["<!DOCTYPE html>", '<html lang="en">', "<head>", '<meta charset="utf-8">',
-             '<meta name="viewport" content="width=device-width, initial-scale=1">',
-             f"<title>{esc(memo.title)}</title>", f"<style>{_CSS}</style>", "</head>", "<body>", f"<h1>{esc(memo.title)}</h1>"]
+    parts = [
+        "<!DOCTYPE html>",
+        '<html lang="en">',
+        "<head>",
+        '<meta charset="utf-8">',
+        '<meta name="viewport" content="width=device-width, initial-scale=1">',
+        f"<title>{esc(memo.title)}</title>",
+        f"<style>{_CSS}</style>",
+        "</head>",
+        "<body>",
+        f"<h1>{esc(memo.title)}</h1>",
+    ]
     for block in memo.blocks:
         if isinstance(block, Heading):
             parts.append(f"<h{block.level}>{esc(block.text)}</h{block.level}>")
@@ -668,16 +831,22 @@ def render_html(memo: Memo, pngs: Mapping[str, bytes]) -> str:
             parts.append("<table>")
             if block.caption:
                 parts.append(f"<caption>{esc(block.caption)}</caption>")
-            parts.append("<thead><tr>" + "".join(f"<th>{esc(h)}</th>" for h in block.header) + "</tr></thead><tbody>")
+            parts.append(
+                "<thead><tr>" + "".join(f"<th>{esc(h)}</th>" for h in block.header) + "</tr></thead><tbody>"
+            )
             for row in block.rows:
-                cells = "".join(f'<td class="number">{esc(c)}</td>' if i and _is_number(c) else f"<td>{esc(c)}</td>"
-                                for i, c in enumerate(row))
+                cells = "".join(
+                    f'<td class="number">{esc(c)}</td>' if i and _is_number(c) else f"<td>{esc(c)}</td>"
+                    for i, c in enumerate(row)
+                )
                 parts.append(f"<tr>{cells}</tr>")
             parts.append("</tbody></table>")
         elif isinstance(block, FigureBlock | ImageFile):
             data = base64.b64encode(pngs[block.name]).decode("ascii")
-            parts.append(f'<figure><img src="data:image/png;base64,{data}" alt="{esc(block.caption)}">'
-                         f"<figcaption>{esc(block.caption)}</figcaption></figure>")
+            parts.append(
+                f'<figure><img src="data:image/png;base64,{data}" alt="{esc(block.caption)}">'
+                f"<figcaption>{esc(block.caption)}</figcaption></figure>"
+            )
     parts += ["</body>", "</html>"]
     return "\n".join(parts) + "\n"
 

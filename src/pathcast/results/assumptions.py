@@ -71,7 +71,11 @@ def _raw_at(raw: Mapping, path: tuple) -> Any:
 
 def _default_note(model: type, field: str) -> str:
     description = model.model_fields[field].description or ""
-    cited = [part.strip() for part in description.split(".") if "source" in part.lower() or "common practice" in part.lower()]
+    cited = [
+        part.strip()
+        for part in description.split(".")
+        if "source" in part.lower() or "common practice" in part.lower()
+    ]
     return "pathcast default" + (f" ({cited[0]})" if cited else "")
 
 
@@ -89,7 +93,9 @@ class _Rows:
         self.rows.append((section, subject, item, value, unit, source))
 
 
-def _capex_rows(rows: _Rows, where: tuple, name: str, item: str, path: CapexPath, unit: str, years: np.ndarray) -> None:
+def _capex_rows(
+    rows: _Rows, where: tuple, name: str, item: str, path: CapexPath, unit: str, years: np.ndarray
+) -> None:
     values = capex_path(path, years)
     source = rows.source(where + (item,))
     if len(years) > 1 and not np.isclose(values[0], values[-1]):
@@ -100,12 +106,28 @@ def _capex_rows(rows: _Rows, where: tuple, name: str, item: str, path: CapexPath
     if path.learning_rate is not None:
         deployment = path.cumulative_deployment
         first, last = (min(deployment), max(deployment)) if isinstance(deployment, dict) else (None, None)
-        span = (f" (cumulative deployment {_number(deployment[first])} GW in {first} to {_number(deployment[last])} GW in {last})"
-                if first is not None else "")
-        rows.add("technologies", name, f"{item.replace('_', ' ')} learning rate",
-                 f"{_percent(path.learning_rate)} per doubling{span}", "-", source)
+        span = (
+            f" (cumulative deployment {_number(deployment[first])} GW in {first} to {_number(deployment[last])} GW in {last})"
+            if first is not None
+            else ""
+        )
+        rows.add(
+            "technologies",
+            name,
+            f"{item.replace('_', ' ')} learning rate",
+            f"{_percent(path.learning_rate)} per doubling{span}",
+            "-",
+            source,
+        )
     elif path.annual_decline is not None:
-        rows.add("technologies", name, f"{item.replace('_', ' ')} decline", f"{_percent(path.annual_decline)}/yr", "-", source)
+        rows.add(
+            "technologies",
+            name,
+            f"{item.replace('_', ' ')} decline",
+            f"{_percent(path.annual_decline)}/yr",
+            "-",
+            source,
+        )
     if path.floor:
         rows.add("technologies", name, f"{item.replace('_', ' ')} floor", _number(path.floor), unit, source)
 
@@ -119,108 +141,275 @@ def assumptions_table(loaded: LoadedScenario) -> pd.DataFrame:
     rows = _Rows(loaded)
 
     # --- general -------------------------------------------------------------------------------------------------
-    rows.add("general", "", "horizon", f"{meta.base_year}-{meta.final_year}", "year", rows.source(("metadata", "base_year")))
-    rows.add("general", "", "money", f"{currency} of {meta.price_year} (real terms)", "-", rows.source(("metadata", "price_year")))
-    rows.add("general", "", "discount rate", _percent(meta.discount_rate), "1/yr", rows.source(("metadata", "discount_rate")))
-    rows.add("general", "", "value of lost load", _number(meta.value_of_lost_load), f"{currency}/MWh",
-             rows.source(("metadata", "value_of_lost_load"), Metadata, "value_of_lost_load"))
-    rows.add("general", "", "value of unserved fuel", _number(meta.value_of_unserved_fuel), f"{currency}/GJ",
-             rows.source(("metadata", "value_of_unserved_fuel"), Metadata, "value_of_unserved_fuel"))
+    rows.add(
+        "general",
+        "",
+        "horizon",
+        f"{meta.base_year}-{meta.final_year}",
+        "year",
+        rows.source(("metadata", "base_year")),
+    )
+    rows.add(
+        "general",
+        "",
+        "money",
+        f"{currency} of {meta.price_year} (real terms)",
+        "-",
+        rows.source(("metadata", "price_year")),
+    )
+    rows.add(
+        "general",
+        "",
+        "discount rate",
+        _percent(meta.discount_rate),
+        "1/yr",
+        rows.source(("metadata", "discount_rate")),
+    )
+    rows.add(
+        "general",
+        "",
+        "value of lost load",
+        _number(meta.value_of_lost_load),
+        f"{currency}/MWh",
+        rows.source(("metadata", "value_of_lost_load"), Metadata, "value_of_lost_load"),
+    )
+    rows.add(
+        "general",
+        "",
+        "value of unserved fuel",
+        _number(meta.value_of_unserved_fuel),
+        f"{currency}/GJ",
+        rows.source(("metadata", "value_of_unserved_fuel"), Metadata, "value_of_unserved_fuel"),
+    )
     policy = scenario.policy
-    rows.add("general", "", "reserve margin", _percent(policy.reserve_margin), "-",
-             rows.source(("policy", "reserve_margin"), Policy, "reserve_margin"))
+    rows.add(
+        "general",
+        "",
+        "reserve margin",
+        _percent(policy.reserve_margin),
+        "-",
+        rows.source(("policy", "reserve_margin"), Policy, "reserve_margin"),
+    )
     budget = policy.carbon_budget
     if budget is not None:
         first = budget.first_year or meta.base_year
         last = budget.last_year or meta.final_year
-        rows.add("general", "", "carbon budget", f"{_number(budget.total_mt)} over {first}-{last}", "MtCO2",
-                 rows.source(("policy", "carbon_budget")))
+        rows.add(
+            "general",
+            "",
+            "carbon budget",
+            f"{_number(budget.total_mt)} over {first}-{last}",
+            "MtCO2",
+            rows.source(("policy", "carbon_budget")),
+        )
     else:
         rows.add("general", "", "carbon budget", "none", "MtCO2", "not set in the scenario")
     if policy.emission_caps_mt:
-        rows.add("general", "", "emission caps", _path(dict(policy.emission_caps_mt)), "MtCO2/yr",
-                 rows.source(("policy", "emission_caps_mt")))
+        rows.add(
+            "general",
+            "",
+            "emission caps",
+            _path(dict(policy.emission_caps_mt)),
+            "MtCO2/yr",
+            rows.source(("policy", "emission_caps_mt")),
+        )
     if policy.carbon_price is not None:
-        rows.add("general", "", "carbon price path", _path(policy.carbon_price), f"{currency}/tCO2",
-                 rows.source(("policy", "carbon_price")))
+        rows.add(
+            "general",
+            "",
+            "carbon price path",
+            _path(policy.carbon_price),
+            f"{currency}/tCO2",
+            rows.source(("policy", "carbon_price")),
+        )
     if policy.clean_electricity_share is not None:
         share = policy.clean_electricity_share
-        text = (", ".join(f"{_percent(share[y])} ({y})" for y in sorted(share)) if isinstance(share, dict)
-                else _percent(share))
-        rows.add("general", "", "clean electricity share", text, "-", rows.source(("policy", "clean_electricity_share")))
+        text = (
+            ", ".join(f"{_percent(share[y])} ({y})" for y in sorted(share))
+            if isinstance(share, dict)
+            else _percent(share)
+        )
+        rows.add(
+            "general",
+            "",
+            "clean electricity share",
+            text,
+            "-",
+            rows.source(("policy", "clean_electricity_share")),
+        )
 
     # --- demand --------------------------------------------------------------------------------------------------
     el = scenario.demand.electricity
     where = ("demand", "electricity")
     if el.yearly_twh is not None:
-        rows.add("demand", "electricity", "final demand", _path(el.yearly_twh), "TWh/yr", rows.source(where + ("yearly_twh",)))
+        rows.add(
+            "demand",
+            "electricity",
+            "final demand",
+            _path(el.yearly_twh),
+            "TWh/yr",
+            rows.source(where + ("yearly_twh",)),
+        )
     else:
-        rows.add("demand", "electricity", "final demand in the base year", _number(el.base_year_twh), "TWh/yr",
-                 rows.source(where + ("base_year_twh",)))
+        rows.add(
+            "demand",
+            "electricity",
+            "final demand in the base year",
+            _number(el.base_year_twh),
+            "TWh/yr",
+            rows.source(where + ("base_year_twh",)),
+        )
         rows.add("demand", "electricity", "growth", _growth(el.growth), "-", rows.source(where + ("growth",)))
     for name, fuel in scenario.demand.fuels.items():
         where = ("demand", "fuels", name)
         served = ", ".join(fuel.served_by)
         if fuel.yearly_pj is not None:
-            rows.add("demand", name, f"final demand (served by {served})", _path(fuel.yearly_pj), "PJ/yr",
-                     rows.source(where + ("yearly_pj",)))
+            rows.add(
+                "demand",
+                name,
+                f"final demand (served by {served})",
+                _path(fuel.yearly_pj),
+                "PJ/yr",
+                rows.source(where + ("yearly_pj",)),
+            )
         else:
-            rows.add("demand", name, f"final demand in the base year (served by {served})", _number(fuel.base_year_pj),
-                     "PJ/yr", rows.source(where + ("base_year_pj",)))
+            rows.add(
+                "demand",
+                name,
+                f"final demand in the base year (served by {served})",
+                _number(fuel.base_year_pj),
+                "PJ/yr",
+                rows.source(where + ("base_year_pj",)),
+            )
             rows.add("demand", name, "growth", _growth(fuel.growth), "-", rows.source(where + ("growth",)))
 
     # --- technologies --------------------------------------------------------------------------------------------
     groups = scenario.technologies
-    for group, techs in (("generators", groups.generators), ("storage", groups.storage), ("converters", groups.converters)):
+    for group, techs in (
+        ("generators", groups.generators),
+        ("storage", groups.storage),
+        ("converters", groups.converters),
+    ):
         for name, tech in techs.items():
             where = ("technologies", group, name)
             per = "kW of input" if group == "converters" else "kW"
             _capex_rows(rows, where, name, "capex", tech.capex, f"{currency}/{per}", years)
             if group == "storage":
                 _capex_rows(rows, where, name, "energy_capex", tech.energy_capex, f"{currency}/kWh", years)
-            rows.add("technologies", name, "fixed O&M", _number(tech.fixed_om), f"{currency}/{per}/yr",
-                     rows.source(where + ("fixed_om",)))
+            rows.add(
+                "technologies",
+                name,
+                "fixed O&M",
+                _number(tech.fixed_om),
+                f"{currency}/{per}/yr",
+                rows.source(where + ("fixed_om",)),
+            )
             if tech.variable_om:
-                rows.add("technologies", name, "variable O&M", _number(tech.variable_om), f"{currency}/MWh",
-                         rows.source(where + ("variable_om",)))
+                rows.add(
+                    "technologies",
+                    name,
+                    "variable O&M",
+                    _number(tech.variable_om),
+                    f"{currency}/MWh",
+                    rows.source(where + ("variable_om",)),
+                )
             if group == "generators" and (tech.efficiency is not None or tech.heat_rate is not None):
                 efficiency = tech.efficiency if tech.efficiency is not None else 3.6 / tech.heat_rate
-                rows.add("technologies", name, "efficiency", _percent(efficiency) + f" ({tech.fuel})", "-",
-                         rows.source(where + ("efficiency" if tech.efficiency is not None else "heat_rate",)))
+                rows.add(
+                    "technologies",
+                    name,
+                    "efficiency",
+                    _percent(efficiency) + f" ({tech.fuel})",
+                    "-",
+                    rows.source(where + ("efficiency" if tech.efficiency is not None else "heat_rate",)),
+                )
             elif group == "converters":
-                rows.add("technologies", name, "efficiency", _percent(tech.efficiency) + f" ({tech.input} to {tech.output})",
-                         "-", rows.source(where + ("efficiency",)))
+                rows.add(
+                    "technologies",
+                    name,
+                    "efficiency",
+                    _percent(tech.efficiency) + f" ({tech.input} to {tech.output})",
+                    "-",
+                    rows.source(where + ("efficiency",)),
+                )
             elif group == "storage":
-                rows.add("technologies", name, "efficiency", _percent(tech.round_trip_efficiency) + " (round trip)", "-",
-                         rows.source(where + ("round_trip_efficiency",)))
-            rows.add("technologies", name, "lifetime", str(tech.lifetime), "yr", rows.source(where + ("lifetime",)))
-            for field, item, unit in (("first_build_year", "first build year", "year"),
-                                      ("phase_out_year", "phase-out year", "year"),
-                                      ("max_build_mw_per_year", "build limit", "MW/yr"),
-                                      ("max_total_mw", "capacity limit", "MW")):
+                rows.add(
+                    "technologies",
+                    name,
+                    "efficiency",
+                    _percent(tech.round_trip_efficiency) + " (round trip)",
+                    "-",
+                    rows.source(where + ("round_trip_efficiency",)),
+                )
+            rows.add(
+                "technologies", name, "lifetime", str(tech.lifetime), "yr", rows.source(where + ("lifetime",))
+            )
+            for field, item, unit in (
+                ("first_build_year", "first build year", "year"),
+                ("phase_out_year", "phase-out year", "year"),
+                ("max_build_mw_per_year", "build limit", "MW/yr"),
+                ("max_total_mw", "capacity limit", "MW"),
+            ):
                 limit = getattr(tech, field)
                 if limit is not None:
-                    rows.add("technologies", name, item, str(limit) if unit == "year" else _number(limit), unit,
-                             rows.source(where + (field,)))
+                    rows.add(
+                        "technologies",
+                        name,
+                        item,
+                        str(limit) if unit == "year" else _number(limit),
+                        unit,
+                        rows.source(where + (field,)),
+                    )
             if tech.cost_of_capital is not None:
-                rows.add("technologies", name, "cost of capital", _percent(tech.cost_of_capital), "1/yr",
-                         rows.source(where + ("cost_of_capital",)))
+                rows.add(
+                    "technologies",
+                    name,
+                    "cost of capital",
+                    _percent(tech.cost_of_capital),
+                    "1/yr",
+                    rows.source(where + ("cost_of_capital",)),
+                )
 
     # --- fuel prices and emission factors ------------------------------------------------------------------------
     for name, supply in groups.supplies.items():
         where = ("technologies", "supplies", name)
-        rows.add("fuel prices", name, f"price ({supply.output}, {supply.origin})", _path(supply.price), f"{currency}/GJ",
-                 rows.source(where + ("price",)))
+        rows.add(
+            "fuel prices",
+            name,
+            f"price ({supply.output}, {supply.origin})",
+            _path(supply.price),
+            f"{currency}/GJ",
+            rows.source(where + ("price",)),
+        )
         if supply.potential_pj is not None:
-            rows.add("fuel prices", name, "potential", _path(supply.potential_pj), "PJ/yr", rows.source(where + ("potential_pj",)))
+            rows.add(
+                "fuel prices",
+                name,
+                "potential",
+                _path(supply.potential_pj),
+                "PJ/yr",
+                rows.source(where + ("potential_pj",)),
+            )
         if supply.phase_out_year is not None:
-            rows.add("fuel prices", name, "phase-out year", str(supply.phase_out_year), "year",
-                     rows.source(where + ("phase_out_year",)))
+            rows.add(
+                "fuel prices",
+                name,
+                "phase-out year",
+                str(supply.phase_out_year),
+                "year",
+                rows.source(where + ("phase_out_year",)),
+            )
     for name, commodity in scenario.commodities.items():
         where = ("commodities", name)
         cited = commodity.source or "no source given in the scenario"
-        rows.add("emission factors", name, "emission factor", _number(commodity.emission_factor * 1000.0), "kgCO2/GJ",
-                 f"{cited} ({rows.source(where)})")
+        rows.add(
+            "emission factors",
+            name,
+            "emission factor",
+            _number(commodity.emission_factor * 1000.0),
+            "kgCO2/GJ",
+            f"{cited} ({rows.source(where)})",
+        )
     return pd.DataFrame(rows.rows, columns=list(ASSUMPTION_COLUMNS))
 
 
@@ -231,16 +420,46 @@ def metadata_assumptions(metadata: Mapping[str, Any], summary: Mapping[str, Any]
     currency = metadata.get("currency") or summary.get("currency") or ""
     rows = []
     if summary.get("base_year") is not None:
-        rows.append(("general", "", "horizon", f"{summary['base_year']}-{summary['final_year']}", "year", "summary.json of the result folder"))
+        rows.append(
+            (
+                "general",
+                "",
+                "horizon",
+                f"{summary['base_year']}-{summary['final_year']}",
+                "year",
+                "summary.json of the result folder",
+            )
+        )
     if metadata.get("price_year") is not None or summary.get("price_year") is not None:
-        rows.append(("general", "", "money", f"{currency} of {metadata.get('price_year', summary.get('price_year'))} (real terms)", "-", source))
-    for key, item, unit in (("discount_rate", "discount rate", "1/yr"), ("value_of_lost_load", "value of lost load", f"{currency}/MWh"),
-                            ("value_of_unserved_fuel", "value of unserved fuel", f"{currency}/GJ")):
+        rows.append(
+            (
+                "general",
+                "",
+                "money",
+                f"{currency} of {metadata.get('price_year', summary.get('price_year'))} (real terms)",
+                "-",
+                source,
+            )
+        )
+    for key, item, unit in (
+        ("discount_rate", "discount rate", "1/yr"),
+        ("value_of_lost_load", "value of lost load", f"{currency}/MWh"),
+        ("value_of_unserved_fuel", "value of unserved fuel", f"{currency}/GJ"),
+    ):
         if metadata.get(key) is not None:
             value = _percent(metadata[key]) if key == "discount_rate" else _number(metadata[key])
             rows.append(("general", "", item, value, unit, source))
     budget = summary.get("carbon_budget_mtco2")
-    rows.append(("general", "", "carbon budget",
-                 "none" if budget is None else f"{_number(budget)} over {summary.get('budget_first_year')}-{summary.get('budget_last_year')}",
-                 "MtCO2", "summary.json of the result folder"))
+    rows.append(
+        (
+            "general",
+            "",
+            "carbon budget",
+            "none"
+            if budget is None
+            else f"{_number(budget)} over {summary.get('budget_first_year')}-{summary.get('budget_last_year')}",
+            "MtCO2",
+            "summary.json of the result folder",
+        )
+    )
     return pd.DataFrame(rows, columns=list(ASSUMPTION_COLUMNS))

@@ -16,7 +16,14 @@ import pandas as pd
 from .climate_constants import TCRE_SOURCE, warming_from_cumulative_co2
 from .run_result import RunResult
 
-__all__ = ["BudgetAccount", "BudgetTerms", "budget_accounting", "budget_terms", "yearly_emissions", "budget_tolerance"]
+__all__ = [
+    "BudgetAccount",
+    "BudgetTerms",
+    "budget_accounting",
+    "budget_terms",
+    "yearly_emissions",
+    "budget_tolerance",
+]
 
 
 def budget_tolerance(budget_mt: float) -> float:
@@ -90,16 +97,33 @@ def budget_accounting(result: RunResult, *, budget_mt: float | None = None) -> B
     warming = warming_from_cumulative_co2(float(emissions.sum()))
     warming["cumulative_mtco2"] = float(emissions.sum())
     if terms is None:
-        table = pd.DataFrame({"year": years, "emissions_mtco2": emissions, "cumulative_mtco2": np.cumsum(emissions),
-                              "budget_mtco2": np.nan, "remaining_mtco2": np.nan, "in_budget_period": False})
+        table = pd.DataFrame(
+            {
+                "year": years,
+                "emissions_mtco2": emissions,
+                "cumulative_mtco2": np.cumsum(emissions),
+                "budget_mtco2": np.nan,
+                "remaining_mtco2": np.nan,
+                "in_budget_period": False,
+            }
+        )
         return BudgetAccount(table=table, exhaustion_year=None, headroom_final_mtco2=None, warming=warming)
     inside = (years >= terms.first_year) & (years <= terms.last_year)
     cumulative = np.cumsum(np.where(inside, emissions, 0.0))
     remaining = terms.budget_mt - cumulative
-    table = pd.DataFrame({"year": years, "emissions_mtco2": emissions, "cumulative_mtco2": cumulative,
-                          "budget_mtco2": terms.budget_mt, "remaining_mtco2": remaining, "in_budget_period": inside})
+    table = pd.DataFrame(
+        {
+            "year": years,
+            "emissions_mtco2": emissions,
+            "cumulative_mtco2": cumulative,
+            "budget_mtco2": terms.budget_mt,
+            "remaining_mtco2": remaining,
+            "in_budget_period": inside,
+        }
+    )
     over = inside & (cumulative > terms.budget_mt + budget_tolerance(terms.budget_mt))
     exhaustion = int(years[np.argmax(over)]) if over.any() else None
     headroom = float(remaining[np.flatnonzero(inside)[-1]]) if inside.any() else float(terms.budget_mt)
-    return BudgetAccount(table=table, exhaustion_year=exhaustion, headroom_final_mtco2=headroom, warming=warming,
-                         terms=terms)
+    return BudgetAccount(
+        table=table, exhaustion_year=exhaustion, headroom_final_mtco2=headroom, warming=warming, terms=terms
+    )

@@ -14,8 +14,14 @@ from types import MappingProxyType
 from ..errors import ScenarioError
 
 __all__ = [
-    "TCRE_BEST_C_PER_1000_GTCO2", "TCRE_LOW_C_PER_1000_GTCO2", "TCRE_HIGH_C_PER_1000_GTCO2", "TCRE_SOURCE",
-    "REMAINING_BUDGETS_2020_GTCO2", "REMAINING_BUDGETS_SOURCE", "MT_PER_GT", "remaining_budget_gtco2",
+    "TCRE_BEST_C_PER_1000_GTCO2",
+    "TCRE_LOW_C_PER_1000_GTCO2",
+    "TCRE_HIGH_C_PER_1000_GTCO2",
+    "TCRE_SOURCE",
+    "REMAINING_BUDGETS_2020_GTCO2",
+    "REMAINING_BUDGETS_SOURCE",
+    "MT_PER_GT",
+    "remaining_budget_gtco2",
     "warming_from_cumulative_co2",
 ]
 
@@ -31,12 +37,16 @@ TCRE_SOURCE = "IPCC (2021), AR6 WG1 SPM D.1.1: TCRE 0.45 C per 1000 GtCO2, likel
 
 # Remaining carbon budgets from 1 January 2020 [GtCO2]: AR6 WG1 SPM Table SPM.2, by warming limit [C] (relative to
 # 1850-1900) and likelihood of limiting warming to it (0.50, 0.67, 0.83).
-REMAINING_BUDGETS_2020_GTCO2 = MappingProxyType({
-    1.5: MappingProxyType({0.50: 500.0, 0.67: 400.0, 0.83: 300.0}),
-    1.7: MappingProxyType({0.50: 850.0, 0.67: 700.0, 0.83: 550.0}),
-    2.0: MappingProxyType({0.50: 1350.0, 0.67: 1150.0, 0.83: 900.0}),
-})
-REMAINING_BUDGETS_SOURCE = "IPCC (2021), AR6 WG1 SPM Table SPM.2: remaining carbon budgets from 1 January 2020"
+REMAINING_BUDGETS_2020_GTCO2 = MappingProxyType(
+    {
+        1.5: MappingProxyType({0.50: 500.0, 0.67: 400.0, 0.83: 300.0}),
+        1.7: MappingProxyType({0.50: 850.0, 0.67: 700.0, 0.83: 550.0}),
+        2.0: MappingProxyType({0.50: 1350.0, 0.67: 1150.0, 0.83: 900.0}),
+    }
+)
+REMAINING_BUDGETS_SOURCE = (
+    "IPCC (2021), AR6 WG1 SPM Table SPM.2: remaining carbon budgets from 1 January 2020"
+)
 
 
 def remaining_budget_gtco2(warming_c: float, likelihood: float = 0.5) -> float:
@@ -44,11 +54,15 @@ def remaining_budget_gtco2(warming_c: float, likelihood: float = 0.5) -> float:
     likelihood (0.50, 0.67 or 0.83), from AR6 WG1 SPM Table SPM.2."""
     by_limit = REMAINING_BUDGETS_2020_GTCO2.get(float(warming_c))
     if by_limit is None:
-        raise ScenarioError(f"warming limit {warming_c!r} C has no AR6 remaining budget; expected one of "
-                            f"{sorted(REMAINING_BUDGETS_2020_GTCO2)}.")
+        raise ScenarioError(
+            f"warming limit {warming_c!r} C has no AR6 remaining budget; expected one of "
+            f"{sorted(REMAINING_BUDGETS_2020_GTCO2)}."
+        )
     value = by_limit.get(round(float(likelihood), 2))
     if value is None:
-        raise ScenarioError(f"likelihood {likelihood!r} has no AR6 remaining budget; expected one of {sorted(by_limit)}.")
+        raise ScenarioError(
+            f"likelihood {likelihood!r} has no AR6 remaining budget; expected one of {sorted(by_limit)}."
+        )
     return value
 
 

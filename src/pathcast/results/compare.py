@@ -34,10 +34,19 @@ from .budget import budget_accounting
 from .reduction_rates import realised_rates, required_rates_table
 from .run_result import RunResult
 
-__all__ = ["compare", "scenario_labels", "milestone_years", "carbon_price_in", "METRIC_LABELS", "metric_label",
-           "ABATEMENT_TOLERANCE_MT"]
+__all__ = [
+    "compare",
+    "scenario_labels",
+    "milestone_years",
+    "carbon_price_in",
+    "METRIC_LABELS",
+    "metric_label",
+    "ABATEMENT_TOLERANCE_MT",
+]
 
-ABATEMENT_TOLERANCE_MT = 1e-6  # [MtCO2] emission differences below this leave the abatement cost undefined (NaN)
+ABATEMENT_TOLERANCE_MT = (
+    1e-6  # [MtCO2] emission differences below this leave the abatement cost undefined (NaN)
+)
 
 METRIC_LABELS: dict[str, str] = {
     "base_year": "base year",
@@ -67,8 +76,11 @@ METRIC_LABELS: dict[str, str] = {
     "unserved_fuel_pj": "unserved fuel demand over the horizon [PJ]",
     "electricity_demand_final_year_twh": "final electricity demand in the final year [TWh/yr]",
 }
-_RATES = ("required_rate_from_start_per_year", "required_rate_from_start_plus_5_per_year",
-          "realised_compound_rate_per_year")
+_RATES = (
+    "required_rate_from_start_per_year",
+    "required_rate_from_start_plus_5_per_year",
+    "realised_compound_rate_per_year",
+)
 
 
 def metric_label(metric: str) -> str:
@@ -81,7 +93,7 @@ def metric_label(metric: str) -> str:
     if family == "final_year_generation_twh":
         return f"generation in the final year [TWh/yr]: {technology}"
     if family.startswith("carbon_price_") and family.endswith("_per_tco2"):
-        return f"carbon price in {family[len('carbon_price_'):-len('_per_tco2')]} [currency/tCO2]"
+        return f"carbon price in {family[len('carbon_price_') : -len('_per_tco2')]} [currency/tCO2]"
     return metric.replace("_", " ")
 
 
@@ -112,7 +124,9 @@ def carbon_price_in(result: RunResult, year: int) -> float:
     return float(rows.iloc[0]) if len(rows) else math.nan
 
 
-def _budget_of(result: RunResult, results: Sequence[RunResult], labels: list[str]) -> tuple[float | None, str | None]:
+def _budget_of(
+    result: RunResult, results: Sequence[RunResult], labels: list[str]
+) -> tuple[float | None, str | None]:
     own = result.summary.get("carbon_budget_mtco2")
     if own is not None:
         return None, None
@@ -146,12 +160,27 @@ def _realised(result: RunResult) -> float:
     return float(whole["compound_rate_per_year"].iloc[0]) if len(whole) else math.nan
 
 
-def _column(result: RunResult, label: str, results: Sequence[RunResult], labels: list[str]) -> dict[str, object]:
+def _column(
+    result: RunResult, label: str, results: Sequence[RunResult], labels: list[str]
+) -> dict[str, object]:
     s = result.summary
-    column: dict[str, object] = {key: s.get(key) for key in (
-        "base_year", "final_year", "currency", "price_year", "total_discounted_cost_million",
-        "cumulative_emissions_mtco2", "first_year_emissions_mtco2", "final_year_emissions_mtco2",
-        "carbon_budget_mtco2", "budget_first_year", "budget_last_year", "within_budget")}
+    column: dict[str, object] = {
+        key: s.get(key)
+        for key in (
+            "base_year",
+            "final_year",
+            "currency",
+            "price_year",
+            "total_discounted_cost_million",
+            "cumulative_emissions_mtco2",
+            "first_year_emissions_mtco2",
+            "final_year_emissions_mtco2",
+            "carbon_budget_mtco2",
+            "budget_first_year",
+            "budget_last_year",
+            "within_budget",
+        )
+    }
     borrowed, owner = _budget_of(result, results, labels)
     account = budget_accounting(result, budget_mt=borrowed)
     if account.terms is not None:
@@ -161,7 +190,9 @@ def _column(result: RunResult, label: str, results: Sequence[RunResult], labels:
         column["comparison_budget_mtco2"] = math.nan
         column["comparison_budget_of"] = None
     column["budget_exhaustion_year"] = account.exhaustion_year
-    column["budget_headroom_final_mtco2"] = account.headroom_final_mtco2 if account.headroom_final_mtco2 is not None else math.nan
+    column["budget_headroom_final_mtco2"] = (
+        account.headroom_final_mtco2 if account.headroom_final_mtco2 is not None else math.nan
+    )
     start, rate0, rate5 = _rates(result, borrowed)
     column["required_rate_start_year"] = start
     column["required_rate_from_start_per_year"] = rate0
@@ -183,7 +214,9 @@ def _abatement(results: Sequence[RunResult]) -> list[float]:
     out = [math.nan]
     for result in results[1:]:
         s = result.summary
-        comparable = s.get("currency") == first.get("currency") and s.get("price_year") == first.get("price_year")
+        comparable = s.get("currency") == first.get("currency") and s.get("price_year") == first.get(
+            "price_year"
+        )
         avoided = float(first["cumulative_emissions_mtco2"]) - float(s["cumulative_emissions_mtco2"])
         if not comparable or abs(avoided) < ABATEMENT_TOLERANCE_MT:
             out.append(math.nan)
@@ -207,8 +240,19 @@ def compare(results: Sequence[RunResult]) -> pd.DataFrame:
     fixed = [k for k in order if "." not in k and not k.startswith("carbon_price_")]
     prices = sorted(k for k in order if k.startswith("carbon_price_"))
     mixes = [k for k in order if "." in k]
-    index = fixed[:fixed.index("peak_build_mw_per_year") + 1] + ["abatement_cost_per_tco2"] + prices + \
-        [k for k in fixed[fixed.index("peak_build_mw_per_year") + 1:] if k != "abatement_cost_per_tco2"] + mixes
-    table = pd.DataFrame({label: [column.get(key, np.nan) for key in index] for label, column in zip(labels, columns, strict=True)},
-                         index=pd.Index(index, name="metric"), dtype=object)
+    index = (
+        fixed[: fixed.index("peak_build_mw_per_year") + 1]
+        + ["abatement_cost_per_tco2"]
+        + prices
+        + [k for k in fixed[fixed.index("peak_build_mw_per_year") + 1 :] if k != "abatement_cost_per_tco2"]
+        + mixes
+    )
+    table = pd.DataFrame(
+        {
+            label: [column.get(key, np.nan) for key in index]
+            for label, column in zip(labels, columns, strict=True)
+        },
+        index=pd.Index(index, name="metric"),
+        dtype=object,
+    )
     return table

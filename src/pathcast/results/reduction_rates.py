@@ -27,8 +27,15 @@ from .budget import BudgetTerms, budget_terms, budget_tolerance, yearly_emission
 from .run_result import RunResult
 
 __all__ = [
-    "RateDomainError", "BudgetExhaustedError", "required_rate_exponential", "required_linear_end_year",
-    "required_rates_table", "realised_rates", "compound_reduction_rate", "default_start_years", "require_budget_terms",
+    "RateDomainError",
+    "BudgetExhaustedError",
+    "required_rate_exponential",
+    "required_linear_end_year",
+    "required_rates_table",
+    "realised_rates",
+    "compound_reduction_rate",
+    "default_start_years",
+    "require_budget_terms",
 ]
 
 
@@ -47,22 +54,29 @@ class BudgetExhaustedError(RateDomainError):
 def _check(start_emissions_mt: float, remaining_budget_mt: float) -> tuple[float, float]:
     e0, budget = float(start_emissions_mt), float(remaining_budget_mt)
     if not math.isfinite(e0) or e0 < 0:
-        raise RateDomainError(f"start emissions {start_emissions_mt!r} MtCO2/yr: expected a finite value >= 0.")
+        raise RateDomainError(
+            f"start emissions {start_emissions_mt!r} MtCO2/yr: expected a finite value >= 0."
+        )
     if not math.isfinite(budget):
         raise RateDomainError(f"remaining budget {remaining_budget_mt!r} MtCO2: expected a finite value.")
     if budget <= 0:
-        raise BudgetExhaustedError(f"the remaining budget is {budget:.6g} MtCO2, so it is exhausted: no decline from "
-                                   f"{e0:.6g} MtCO2/yr fits into it.")
+        raise BudgetExhaustedError(
+            f"the remaining budget is {budget:.6g} MtCO2, so it is exhausted: no decline from "
+            f"{e0:.6g} MtCO2/yr fits into it."
+        )
     return e0, budget
 
 
 def _start_year_too_big(e0: float, budget: float) -> BudgetExhaustedError:
-    return BudgetExhaustedError(f"the start year alone emits {e0:.6g} MtCO2, more than the remaining budget of "
-                                f"{budget:.6g} MtCO2, so the budget is exhausted within the start year.")
+    return BudgetExhaustedError(
+        f"the start year alone emits {e0:.6g} MtCO2, more than the remaining budget of "
+        f"{budget:.6g} MtCO2, so the budget is exhausted within the start year."
+    )
 
 
-def required_rate_exponential(start_emissions_mt: float, remaining_budget_mt: float, *,
-                              count_start_year: bool = True) -> float:
+def required_rate_exponential(
+    start_emissions_mt: float, remaining_budget_mt: float, *, count_start_year: bool = True
+) -> float:
     """Constant annual rate of decline r [1/yr] with E_t = E0 (1 - r)^t whose cumulative emissions equal the remaining
     budget, in closed form: r = E0 / B counting the start year (sum over t >= 0 is E0 / r), r = E0 / (E0 + B) not
     counting it (sum over t >= 1 is E0 (1 - r) / r). 0 when E0 = 0.
@@ -80,8 +94,9 @@ def required_rate_exponential(start_emissions_mt: float, remaining_budget_mt: fl
     return e0 / (e0 + budget)
 
 
-def required_linear_end_year(start_year: int, start_emissions_mt: float, remaining_budget_mt: float, *,
-                             count_start_year: bool = True) -> float:
+def required_linear_end_year(
+    start_year: int, start_emissions_mt: float, remaining_budget_mt: float, *, count_start_year: bool = True
+) -> float:
     """Year in which a linear decline to zero, that exactly uses the remaining budget, reaches zero.
 
     Discrete yearly steps: E_t = E0 (1 - t/N) for t = 0..N, t years after ``start_year``. Counting the start year the
@@ -102,8 +117,10 @@ def required_linear_end_year(start_year: int, start_emissions_mt: float, remaini
 def require_budget_terms(result: RunResult, budget_mt: float | None) -> BudgetTerms:
     terms = budget_terms(result, budget_mt)
     if terms is None:
-        raise ScenarioError(f"result {result.scenario_name!r}: summary carbon_budget_mtco2 is None; expected a run with "
-                            "a carbon budget (policy.carbon_budget) or a budget given with budget_mt (--budget MT).")
+        raise ScenarioError(
+            f"result {result.scenario_name!r}: summary carbon_budget_mtco2 is None; expected a run with "
+            "a carbon budget (policy.carbon_budget) or a budget given with budget_mt (--budget MT)."
+        )
     return terms
 
 
@@ -116,8 +133,9 @@ def default_start_years(result: RunResult, terms: BudgetTerms, step: int = 5) ->
     return starts or ([first] if first <= last else [])
 
 
-def required_rates_table(result: RunResult, start_years: list[int] | None = None, *,
-                         budget_mt: float | None = None) -> pd.DataFrame:
+def required_rates_table(
+    result: RunResult, start_years: list[int] | None = None, *, budget_mt: float | None = None
+) -> pd.DataFrame:
     """Required rates of decline from each start year, given the scenario's own emissions before it.
 
     For start year S: remaining budget = budget - the run's emissions in the budget period's years before S; from S on
@@ -136,16 +154,22 @@ def required_rates_table(result: RunResult, start_years: list[int] | None = None
     for start in start_years:
         start = int(start)
         if start not in years:
-            raise ScenarioError(f"start year {start!r} is not a modelled year of {result.scenario_name!r}; expected a "
-                                f"year from {int(years[0])} to {int(years[-1])}.")
+            raise ScenarioError(
+                f"start year {start!r} is not a modelled year of {result.scenario_name!r}; expected a "
+                f"year from {int(years[0])} to {int(years[-1])}."
+            )
         if not terms.first_year <= start <= terms.last_year:
-            raise ScenarioError(f"start year {start!r} lies outside the budget period {terms.first_year}-"
-                                f"{terms.last_year} of {result.scenario_name!r}; expected a year inside it.")
+            raise ScenarioError(
+                f"start year {start!r} lies outside the budget period {terms.first_year}-"
+                f"{terms.last_year} of {result.scenario_name!r}; expected a year inside it."
+            )
         before = (years >= terms.first_year) & (years < start)
         remaining = terms.budget_mt - float(emissions[before].sum())
         e0 = float(emissions[years == start][0])
         if abs(remaining - e0) <= budget_tolerance(terms.budget_mt):
-            remaining = max(remaining, e0)  # the budget ends exactly with this year (within the solver's tolerance)
+            remaining = max(
+                remaining, e0
+            )  # the budget ends exactly with this year (within the solver's tolerance)
         try:
             rate = required_rate_exponential(e0, remaining)
             end = required_linear_end_year(start, e0, remaining)
@@ -153,8 +177,17 @@ def required_rates_table(result: RunResult, start_years: list[int] | None = None
         except BudgetExhaustedError:
             rate, end, exhausted = math.nan, math.nan, True
         rows.append((start, e0, remaining, rate, end, exhausted))
-    return pd.DataFrame(rows, columns=["start_year", "emissions_at_start_mtco2", "remaining_budget_mtco2",
-                                       "exponential_rate_per_year", "linear_end_year", "budget_exhausted"])
+    return pd.DataFrame(
+        rows,
+        columns=[
+            "start_year",
+            "emissions_at_start_mtco2",
+            "remaining_budget_mtco2",
+            "exponential_rate_per_year",
+            "linear_end_year",
+            "budget_exhausted",
+        ],
+    )
 
 
 def compound_reduction_rate(start_emissions_mt: float, end_emissions_mt: float, years: float) -> float:
@@ -181,17 +214,38 @@ def realised_rates(result: RunResult, *, period_years: int = 10) -> tuple[pd.Dat
     consecutive = np.concatenate([[False], np.diff(years) == 1])
     with np.errstate(divide="ignore", invalid="ignore"):
         rate = np.where(consecutive & (previous > 0), 1.0 - emissions / previous, np.nan)
-    yearly = pd.DataFrame({"year": years, "emissions_mtco2": emissions,
-                           "reduction_mtco2": np.where(consecutive, previous - emissions, np.nan), "reduction_rate": rate})
+    yearly = pd.DataFrame(
+        {
+            "year": years,
+            "emissions_mtco2": emissions,
+            "reduction_mtco2": np.where(consecutive, previous - emissions, np.nan),
+            "reduction_rate": rate,
+        }
+    )
     by_year = dict(zip(years.tolist(), emissions.tolist(), strict=True))
     rows = []
     start, final = int(years[0]), int(years[-1])
     while start < final:
         end = min(start + period_years, final)
         if start in by_year and end in by_year:
-            rows.append((start, end, by_year[start], by_year[end],
-                         compound_reduction_rate(by_year[start], by_year[end], end - start)))
+            rows.append(
+                (
+                    start,
+                    end,
+                    by_year[start],
+                    by_year[end],
+                    compound_reduction_rate(by_year[start], by_year[end], end - start),
+                )
+            )
         start = end
-    periods = pd.DataFrame(rows, columns=["period_start", "period_end", "emissions_start_mtco2", "emissions_end_mtco2",
-                                          "compound_rate_per_year"])
+    periods = pd.DataFrame(
+        rows,
+        columns=[
+            "period_start",
+            "period_end",
+            "emissions_start_mtco2",
+            "emissions_end_mtco2",
+            "compound_rate_per_year",
+        ],
+    )
     return yearly, periods

@@ -35,8 +35,20 @@ import pandas as pd
 __all__ = ["RunResult", "TABLES"]
 
 TABLES = (
-    "capacity", "storage_energy", "electricity", "electricity_hourly", "fuel_flows", "fuel_supply", "fuel_demand",
-    "emissions", "emissions_total", "costs", "electricity_price", "fuel_price", "carbon_price", "lcoe",
+    "capacity",
+    "storage_energy",
+    "electricity",
+    "electricity_hourly",
+    "fuel_flows",
+    "fuel_supply",
+    "fuel_demand",
+    "emissions",
+    "emissions_total",
+    "costs",
+    "electricity_price",
+    "fuel_price",
+    "carbon_price",
+    "lcoe",
 )
 
 
@@ -62,9 +74,19 @@ class RunResult:
         return str(self.metadata.get("currency", ""))
 
     @staticmethod
-    def create(scenario_name: str, tables: dict[str, pd.DataFrame], summary: dict[str, Any],
-               manifest: dict[str, Any], metadata: dict[str, Any]) -> RunResult:
+    def create(
+        scenario_name: str,
+        tables: dict[str, pd.DataFrame],
+        summary: dict[str, Any],
+        manifest: dict[str, Any],
+        metadata: dict[str, Any],
+    ) -> RunResult:
         for frame in tables.values():
             frame.flags.allows_duplicate_labels = True
-        return RunResult(scenario_name, MappingProxyType(dict(tables)), MappingProxyType(dict(summary)),
-                         MappingProxyType(dict(manifest)), MappingProxyType(dict(metadata)))
+        return RunResult(
+            scenario_name,
+            MappingProxyType(dict(tables)),
+            MappingProxyType(dict(summary)),
+            MappingProxyType(dict(manifest)),
+            MappingProxyType(dict(metadata)),
+        )

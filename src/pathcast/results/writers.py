@@ -79,17 +79,31 @@ def read_result(folder: Path) -> RunResult:
     folder = Path(folder)
     summary_path = folder / "summary.json"
     if not summary_path.is_file():
-        raise ScenarioError(f"{folder}: (folder): got a folder without summary.json; expected a pathcast result folder "
-                            "written by 'pathcast run'.", file=str(folder))
+        raise ScenarioError(
+            f"{folder}: (folder): got a folder without summary.json; expected a pathcast result folder "
+            "written by 'pathcast run'.",
+            file=str(folder),
+        )
     tables = {}
     for name in TABLES:
         path = folder / f"{name}.csv"
         if not path.is_file():
-            raise ScenarioError(f"{folder}: {name}.csv: got no such file; expected every table of a pathcast result folder.",
-                                file=str(folder))
+            raise ScenarioError(
+                f"{folder}: {name}.csv: got no such file; expected every table of a pathcast result folder.",
+                file=str(folder),
+            )
         tables[name] = pd.read_csv(path)
     summary = json.loads(summary_path.read_text())
-    manifest = json.loads((folder / "manifest.json").read_text()) if (folder / "manifest.json").is_file() else {}
-    metadata = json.loads((folder / "metadata.json").read_text()) if (folder / "metadata.json").is_file() else {}
-    return RunResult(summary.get("scenario", folder.name), MappingProxyType(tables), MappingProxyType(summary),
-                     MappingProxyType(manifest), MappingProxyType(metadata))
+    manifest = (
+        json.loads((folder / "manifest.json").read_text()) if (folder / "manifest.json").is_file() else {}
+    )
+    metadata = (
+        json.loads((folder / "metadata.json").read_text()) if (folder / "metadata.json").is_file() else {}
+    )
+    return RunResult(
+        summary.get("scenario", folder.name),
+        MappingProxyType(tables),
+        MappingProxyType(summary),
+        MappingProxyType(manifest),
+        MappingProxyType(metadata),
+    )

@@ -16,8 +16,17 @@ from ..economics import capital_recovery_factor, discount_factors
 from .learning import capex_path
 from .schema import ELECTRICITY, CapexPath, Scenario
 
-__all__ = ["ModelInputs", "TechnologyInputs", "SupplyInputs", "FuelDemandInputs", "prepare_inputs", "path_values",
-           "growth_path", "PJ_PER_GWH", "PJ_PER_GW_YEAR"]
+__all__ = [
+    "ModelInputs",
+    "TechnologyInputs",
+    "SupplyInputs",
+    "FuelDemandInputs",
+    "prepare_inputs",
+    "path_values",
+    "growth_path",
+    "PJ_PER_GWH",
+    "PJ_PER_GW_YEAR",
+]
 
 PJ_PER_GWH = 0.0036  # 1 GWh = 3.6 TJ (1 kWh = 3.6 MJ exactly, SI)
 HOURS_PER_YEAR = 8760.0
@@ -42,7 +51,9 @@ def growth_path(base: float, growth: float | dict[int, float] | None, years: np.
         rates = np.zeros(len(years))
     elif isinstance(growth, dict):
         starts = sorted(growth)
-        rates = np.array([growth[max([s for s in starts if s <= y], default=starts[0])] for y in years], dtype=float)
+        rates = np.array(
+            [growth[max([s for s in starts if s <= y], default=starts[0])] for y in years], dtype=float
+        )
     else:
         rates = np.full(len(years), float(growth))
     factors = np.concatenate([[1.0], np.cumprod(1.0 + rates[1:])])
@@ -152,7 +163,9 @@ def _capex_array(path: CapexPath, years: np.ndarray) -> np.ndarray:
 
 def _limits(t, years: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
     min_build = np.full(len(years), t.min_build_mw_per_year / 1000.0)
-    max_build = np.full(len(years), math.inf if t.max_build_mw_per_year is None else t.max_build_mw_per_year / 1000.0)
+    max_build = np.full(
+        len(years), math.inf if t.max_build_mw_per_year is None else t.max_build_mw_per_year / 1000.0
+    )
     max_total = np.full(len(years), math.inf if t.max_total_mw is None else t.max_total_mw / 1000.0)
     if t.first_build_year is not None:
         early = years < t.first_build_year
@@ -177,9 +190,15 @@ def _common(t, years: np.ndarray, rate: float) -> dict:
     """The fields every generator, storage and converter shares, in internal units."""
     min_b, max_b, max_t = _limits(t, years)
     return dict(
-        capex=_capex_array(t.capex, years), fixed_om=t.fixed_om, variable_om=t.variable_om / 1000.0,
-        lifetime=t.lifetime, crf=capital_recovery_factor(t.cost_of_capital if t.cost_of_capital is not None else rate, t.lifetime),
-        existing_gw=_existing(t, years, "capacity_mw", 1e-3), min_build_gw=min_b, max_build_gw=max_b, max_total_gw=max_t,
+        capex=_capex_array(t.capex, years),
+        fixed_om=t.fixed_om,
+        variable_om=t.variable_om / 1000.0,
+        lifetime=t.lifetime,
+        crf=capital_recovery_factor(t.cost_of_capital if t.cost_of_capital is not None else rate, t.lifetime),
+        existing_gw=_existing(t, years, "capacity_mw", 1e-3),
+        min_build_gw=min_b,
+        max_build_gw=max_b,
+        max_total_gw=max_t,
     )
 
 
@@ -199,8 +218,12 @@ def prepare_inputs(s: Scenario) -> ModelInputs:
         demand_twh = path_values(el.yearly_twh, years)
     else:
         demand_twh = growth_path(el.base_year_twh, el.growth, years)
-    demand_gw = demand_twh[:, None, None] * 1000.0 * shape[None, :, :]  # GWh in the year x share per hour -> GW
-    profiles = {name: np.array([d.availability[name] for d in days], dtype=float) for name in days[0].availability}
+    demand_gw = (
+        demand_twh[:, None, None] * 1000.0 * shape[None, :, :]
+    )  # GWh in the year x share per hour -> GW
+    profiles = {
+        name: np.array([d.availability[name] for d in days], dtype=float) for name in days[0].availability
+    }
 
     fuels = tuple(s.commodities)
     ef = {name: c.emission_factor for name, c in s.commodities.items()}
@@ -218,31 +241,65 @@ def prepare_inputs(s: Scenario) -> ModelInputs:
         if credit is None:
             credit = 0.0 if profile_driven else float(availability.mean())
         clean = g.clean if g.clean is not None else (g.fuel is None or ef.get(g.fuel, 0.0) == 0.0)
-        techs.append(TechnologyInputs(
-            name=name, kind="generator", **_common(g, years, rate), capacity_credit=credit, fuel=g.fuel, efficiency=efficiency, availability=availability, clean=clean,
-        ))
+        techs.append(
+            TechnologyInputs(
+                name=name,
+                kind="generator",
+                **_common(g, years, rate),
+                capacity_credit=credit,
+                fuel=g.fuel,
+                efficiency=efficiency,
+                availability=availability,
+                clean=clean,
+            )
+        )
     for name, st in s.technologies.storage.items():
         one_way = math.sqrt(st.round_trip_efficiency)
-        techs.append(TechnologyInputs(
-            name=name, kind="storage", **_common(st, years, rate), capacity_credit=st.capacity_credit, energy_capex=_capex_array(st.energy_capex, years),
-            energy_fixed_om=st.energy_fixed_om, existing_energy_gwh=_existing(st, years, "energy_mwh", 1e-3),
-            charge_efficiency=one_way, discharge_efficiency=one_way, min_duration_h=st.min_duration_hours,
-            max_duration_h=st.max_duration_hours if st.max_duration_hours is not None else math.inf, clean=True,
-        ))
+        techs.append(
+            TechnologyInputs(
+                name=name,
+                kind="storage",
+                **_common(st, years, rate),
+                capacity_credit=st.capacity_credit,
+                energy_capex=_capex_array(st.energy_capex, years),
+                energy_fixed_om=st.energy_fixed_om,
+                existing_energy_gwh=_existing(st, years, "energy_mwh", 1e-3),
+                charge_efficiency=one_way,
+                discharge_efficiency=one_way,
+                min_duration_h=st.min_duration_hours,
+                max_duration_h=st.max_duration_hours if st.max_duration_hours is not None else math.inf,
+                clean=True,
+            )
+        )
     for name, c in s.technologies.converters.items():
-        techs.append(TechnologyInputs(
-            name=name, kind="converter", **_common(c, years, rate), input=c.input, output=c.output, efficiency=c.efficiency,
-            availability=np.full((len(days), hours), c.availability) if c.input == ELECTRICITY else None,
-            converter_availability=c.availability, process_emission_factor=c.process_emission_factor,
-        ))
+        techs.append(
+            TechnologyInputs(
+                name=name,
+                kind="converter",
+                **_common(c, years, rate),
+                input=c.input,
+                output=c.output,
+                efficiency=c.efficiency,
+                availability=np.full((len(days), hours), c.availability) if c.input == ELECTRICITY else None,
+                converter_availability=c.availability,
+                process_emission_factor=c.process_emission_factor,
+            )
+        )
 
     supplies = []
     for name, sup in s.technologies.supplies.items():
         potential = path_values(sup.potential_pj, years, default=math.inf)
         if sup.phase_out_year is not None:
             potential = np.where(years >= sup.phase_out_year, 0.0, potential)
-        supplies.append(SupplyInputs(name=name, output=sup.output, origin=sup.origin,
-                                     price=path_values(sup.price, years), potential_pj=potential))
+        supplies.append(
+            SupplyInputs(
+                name=name,
+                output=sup.output,
+                origin=sup.origin,
+                price=path_values(sup.price, years),
+                potential_pj=potential,
+            )
+        )
 
     fuel_demands = []
     for name, fd in s.demand.fuels.items():
@@ -255,7 +312,10 @@ def prepare_inputs(s: Scenario) -> ModelInputs:
     pol = s.policy
     budget_years = None
     if pol.carbon_budget is not None:
-        budget_years = (pol.carbon_budget.first_year or meta.base_year, pol.carbon_budget.last_year or meta.final_year)
+        budget_years = (
+            pol.carbon_budget.first_year or meta.base_year,
+            pol.carbon_budget.last_year or meta.final_year,
+        )
     clean_share = None
     if pol.clean_electricity_share is not None:
         clean_share = path_values(pol.clean_electricity_share, years)
@@ -264,13 +324,29 @@ def prepare_inputs(s: Scenario) -> ModelInputs:
 
     solver = s.solver.model_dump()
     return ModelInputs(
-        name=meta.name, currency=meta.currency, price_year=meta.price_year, years=years, discount_rate=rate,
-        discount_factor=discount_factors(rate, years - years[0]), day_names=tuple(d.name for d in days),
-        day_weights=weights, electricity_demand_gw=demand_gw, electricity_demand_twh=demand_twh,
-        peak_demand_gw=demand_gw.max(axis=(1, 2)), fuels=fuels, emission_factor=ef, technologies=tuple(techs),
-        supplies=tuple(supplies), fuel_demands=tuple(fuel_demands),
-        value_of_lost_load=meta.value_of_lost_load / 1000.0, value_of_unserved_fuel=meta.value_of_unserved_fuel,
-        reserve_margin=pol.reserve_margin, budget_mt=pol.carbon_budget.total_mt if pol.carbon_budget else None,
-        budget_years=budget_years, emission_caps_mt=dict(pol.emission_caps_mt),
-        carbon_price=path_values(pol.carbon_price, years), clean_share=clean_share, solver=solver,
+        name=meta.name,
+        currency=meta.currency,
+        price_year=meta.price_year,
+        years=years,
+        discount_rate=rate,
+        discount_factor=discount_factors(rate, years - years[0]),
+        day_names=tuple(d.name for d in days),
+        day_weights=weights,
+        electricity_demand_gw=demand_gw,
+        electricity_demand_twh=demand_twh,
+        peak_demand_gw=demand_gw.max(axis=(1, 2)),
+        fuels=fuels,
+        emission_factor=ef,
+        technologies=tuple(techs),
+        supplies=tuple(supplies),
+        fuel_demands=tuple(fuel_demands),
+        value_of_lost_load=meta.value_of_lost_load / 1000.0,
+        value_of_unserved_fuel=meta.value_of_unserved_fuel,
+        reserve_margin=pol.reserve_margin,
+        budget_mt=pol.carbon_budget.total_mt if pol.carbon_budget else None,
+        budget_years=budget_years,
+        emission_caps_mt=dict(pol.emission_caps_mt),
+        carbon_price=path_values(pol.carbon_price, years),
+        clean_share=clean_share,
+        solver=solver,
     )

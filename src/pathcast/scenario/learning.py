@@ -16,9 +16,13 @@ def learning_exponent(learning_rate: float) -> float:
     return -math.log2(1.0 - learning_rate)
 
 
-def wright_cost(base_cost: float, cumulative: np.ndarray, base_cumulative: float, learning_rate: float) -> np.ndarray:
+def wright_cost(
+    base_cost: float, cumulative: np.ndarray, base_cumulative: float, learning_rate: float
+) -> np.ndarray:
     """C(X) = C0 (X / X0)^-b [same unit as ``base_cost``]."""
-    return base_cost * (np.asarray(cumulative, dtype=float) / base_cumulative) ** (-learning_exponent(learning_rate))
+    return base_cost * (np.asarray(cumulative, dtype=float) / base_cumulative) ** (
+        -learning_exponent(learning_rate)
+    )
 
 
 def capex_path(path: CapexPath, years: np.ndarray) -> np.ndarray:

@@ -19,8 +19,16 @@ from pydantic import BaseModel, ValidationError
 from ..errors import ScenarioError, did_you_mean
 from .schema import Scenario
 
-__all__ = ["load_scenario", "LoadedScenario", "located_error", "read_yaml_with_extends", "value_at", "read_yaml_document", "read_scenario_mapping",
-           "load_scenario_mapping"]
+__all__ = [
+    "load_scenario",
+    "LoadedScenario",
+    "located_error",
+    "read_yaml_with_extends",
+    "value_at",
+    "read_yaml_document",
+    "read_scenario_mapping",
+    "load_scenario_mapping",
+]
 
 Provenance = dict[tuple, Path]
 
@@ -74,7 +82,9 @@ def read_yaml_document(path: Path, kind: str = "scenario") -> Any:
     except yaml.YAMLError as error:
         mark = getattr(error, "problem_mark", None)
         where = f" at line {mark.line + 1}, column {mark.column + 1}" if mark else ""
-        raise ScenarioError(f"{path}: not valid YAML{where}: {getattr(error, 'problem', error)}.", file=str(path)) from None
+        raise ScenarioError(
+            f"{path}: not valid YAML{where}: {getattr(error, 'problem', error)}.", file=str(path)
+        ) from None
 
 
 def _read_yaml(path: Path, referrer: tuple[Path, str] | None) -> dict[str, Any]:
@@ -84,7 +94,9 @@ def _read_yaml(path: Path, referrer: tuple[Path, str] | None) -> dict[str, Any]:
     if data is None:
         data = {}
     if not isinstance(data, dict):
-        raise located_error(path, "(top level)", type(data).__name__, "a mapping of sections (metadata, time, ...)")
+        raise located_error(
+            path, "(top level)", type(data).__name__, "a mapping of sections (metadata, time, ...)"
+        )
     return data
 
 
@@ -113,7 +125,9 @@ def _replaces_whole(key: str, value: dict) -> bool:
     return bool(value) and all(isinstance(k, int) for k in value)
 
 
-def read_yaml_with_extends(path: Path, _chain: tuple[Path, ...] = (), _referrer=None) -> tuple[dict, Provenance, tuple]:
+def read_yaml_with_extends(
+    path: Path, _chain: tuple[Path, ...] = (), _referrer=None
+) -> tuple[dict, Provenance, tuple]:
     """Return the merged raw mapping, the file that set each field, and the chain of files (parents first)."""
     path = path.resolve()
     if path in _chain:
@@ -173,7 +187,9 @@ def _read_days_csv(path: Path) -> list[dict[str, Any]]:
         raise located_error(path, "(rows)", 0, "one row per representative day and hour")
     missing = [c for c in DAY_COLUMNS if c not in rows[0]]
     if missing:
-        raise located_error(path, "(columns)", sorted(rows[0]), f"the columns {list(DAY_COLUMNS)} and one per profile")
+        raise located_error(
+            path, "(columns)", sorted(rows[0]), f"the columns {list(DAY_COLUMNS)} and one per profile"
+        )
     profiles = [c for c in rows[0] if c not in DAY_COLUMNS]
     days: dict[str, dict[str, Any]] = {}
     for number, row in enumerate(rows, start=2):
@@ -181,25 +197,45 @@ def _read_days_csv(path: Path) -> list[dict[str, Any]]:
             name = row["day"]
             day = days.setdefault(
                 name,
-                {"name": name, "weight_days": float(row["weight_days"]), "demand_shape": [], "availability": {p: [] for p in profiles}},
+                {
+                    "name": name,
+                    "weight_days": float(row["weight_days"]),
+                    "demand_shape": [],
+                    "availability": {p: [] for p in profiles},
+                },
             )
             if float(row["weight_days"]) != day["weight_days"]:
-                raise located_error(path, f"line {number}.weight_days", row["weight_days"], f"the same weight on every hour of day {name!r}")
+                raise located_error(
+                    path,
+                    f"line {number}.weight_days",
+                    row["weight_days"],
+                    f"the same weight on every hour of day {name!r}",
+                )
             if int(row["hour"]) != len(day["demand_shape"]):
-                raise located_error(path, f"line {number}.hour", row["hour"], f"hour {len(day['demand_shape'])} (hours 0-23 in order)")
+                raise located_error(
+                    path,
+                    f"line {number}.hour",
+                    row["hour"],
+                    f"hour {len(day['demand_shape'])} (hours 0-23 in order)",
+                )
             day["demand_shape"].append(float(row["demand"]))
             for p in profiles:
                 day["availability"][p].append(float(row[p]))
         except ValueError as error:
             if isinstance(error, ScenarioError):
                 raise
-            raise located_error(path, f"line {number}", dict(row), "numbers in every column but 'day'") from None
+            raise located_error(
+                path, f"line {number}", dict(row), "numbers in every column but 'day'"
+            ) from None
     return list(days.values())
 
 
 def _read_csv(path: Path) -> list[dict[str, str]]:
     with path.open(newline="", encoding="utf-8") as handle:
-        return [{k.strip(): (v or "").strip() for k, v in row.items() if k is not None} for row in csv.DictReader(handle)]
+        return [
+            {k.strip(): (v or "").strip() for k, v in row.items() if k is not None}
+            for row in csv.DictReader(handle)
+        ]
 
 
 def load_scenario(path: str | Path) -> LoadedScenario:
@@ -209,12 +245,16 @@ def load_scenario(path: str | Path) -> LoadedScenario:
     path = Path(path)
     raw, provenance, files = read_yaml_with_extends(path)
     raw = _resolve_csv(raw, (), provenance, path.resolve())
-    currency = raw.get("metadata", {}).get("currency", "USD") if isinstance(raw.get("metadata"), dict) else "USD"
+    currency = (
+        raw.get("metadata", {}).get("currency", "USD") if isinstance(raw.get("metadata"), dict) else "USD"
+    )
     try:
         scenario = Scenario.model_validate(raw, context={"currency": currency})
     except ValidationError as error:
         raise _explain(error, raw, provenance, path.resolve()) from None
-    loaded = LoadedScenario(scenario=scenario, path=path.resolve(), files=files, raw=raw, provenance=provenance)
+    loaded = LoadedScenario(
+        scenario=scenario, path=path.resolve(), files=files, raw=raw, provenance=provenance
+    )
     check_scenario(loaded)
     return loaded
 
@@ -225,7 +265,14 @@ def _explain(error: ValidationError, raw: dict, provenance: Provenance, default:
     first = next((e for e in errors if e["type"] == "extra_forbidden"), errors[0])
     loc = tuple(first["loc"])
     # pydantic adds the union member or validator names to locations ('function-before[...]', 'float', ...)
-    loc = tuple(p for p in loc if not (isinstance(p, str) and ("[" in p or p in {"float", "int", "str", "dict[int,float]", "list[float]"})))
+    loc = tuple(
+        p
+        for p in loc
+        if not (
+            isinstance(p, str)
+            and ("[" in p or p in {"float", "int", "str", "dict[int,float]", "list[float]"})
+        )
+    )
     file = file_for(provenance, loc, default)
     kind = first["type"]
     if kind == "extra_forbidden":
@@ -279,7 +326,13 @@ def _model_at(model: type[BaseModel], loc: tuple) -> type[BaseModel] | None:
                 current = typing.get_args(current)[0]
             elif origin in (typing.Union, getattr(__import__("types"), "UnionType", None)):
                 models = [a for a in typing.get_args(current) if a is not type(None)]
-                current = models[0] if len(models) == 1 else next((m for m in models if isinstance(m, type) and issubclass(m, BaseModel)), models[0])
+                current = (
+                    models[0]
+                    if len(models) == 1
+                    else next(
+                        (m for m in models if isinstance(m, type) and issubclass(m, BaseModel)), models[0]
+                    )
+                )
             else:
                 break
     if isinstance(current, type) and issubclass(current, BaseModel):
@@ -313,19 +366,28 @@ def read_scenario_mapping(path: str | Path) -> tuple[dict[str, Any], Provenance,
     return _resolve_csv(raw, (), provenance, path.resolve()), provenance, files
 
 
-def load_scenario_mapping(raw: dict[str, Any], path: str | Path, *, provenance: Provenance | None = None,
-                          files: tuple[Path, ...] = ()) -> LoadedScenario:
+def load_scenario_mapping(
+    raw: dict[str, Any],
+    path: str | Path,
+    *,
+    provenance: Provenance | None = None,
+    files: tuple[Path, ...] = (),
+) -> LoadedScenario:
     """Validate a merged, CSV-resolved raw mapping as :func:`load_scenario` does; ``path`` is the file named in errors
     (and, with ``provenance``, the default owner of fields the provenance does not know)."""
     from .validation import check_scenario
 
     path = Path(path).resolve()
     provenance = provenance or {}
-    currency = raw.get("metadata", {}).get("currency", "USD") if isinstance(raw.get("metadata"), dict) else "USD"
+    currency = (
+        raw.get("metadata", {}).get("currency", "USD") if isinstance(raw.get("metadata"), dict) else "USD"
+    )
     try:
         scenario = Scenario.model_validate(raw, context={"currency": currency})
     except ValidationError as error:
         raise _explain(error, raw, provenance, path) from None
-    loaded = LoadedScenario(scenario=scenario, path=path, files=files or (path,), raw=raw, provenance=provenance)
+    loaded = LoadedScenario(
+        scenario=scenario, path=path, files=files or (path,), raw=raw, provenance=provenance
+    )
     check_scenario(loaded)
     return loaded

@@ -49,7 +49,9 @@ def _type_name(annotation) -> str:
             return "number or capex path"
         if issubclass(annotation, BaseModel):
             return "section"
-        return {"float": "number", "int": "integer", "str": "text", "bool": "true/false"}.get(annotation.__name__, annotation.__name__)
+        return {"float": "number", "int": "integer", "str": "text", "bool": "true/false"}.get(
+            annotation.__name__, annotation.__name__
+        )
     return str(annotation)
 
 

@@ -111,18 +111,24 @@ class Metadata(_Strict):
         1000.0,
         description="Cost of unserved fuel demand [currency/GJ]; a penalty that makes shortfalls visible. Common practice, no source.",
     )
-    illustrative: bool = Field(False, description="True when the numbers are invented (the demo); memos say so.")
+    illustrative: bool = Field(
+        False, description="True when the numbers are invented (the demo); memos say so."
+    )
 
     @model_validator(mode="after")
     def _years(self) -> Metadata:
         if self.final_year < self.base_year:
-            raise ValueError(f"final_year {self.final_year!r} must not be before base_year {self.base_year!r}")
+            raise ValueError(
+                f"final_year {self.final_year!r} must not be before base_year {self.base_year!r}"
+            )
         return self
 
 
 class RepresentativeDay(_Strict):
     name: str = Field(description="Label of the day, unique.")
-    weight_days: Annotated[float, Field(gt=0)] = Field(description="Days of the year this day stands for [days/yr].")
+    weight_days: Annotated[float, Field(gt=0)] = Field(
+        description="Days of the year this day stands for [days/yr]."
+    )
     demand_shape: list[float] = Field(
         description="24 hourly values of electricity demand, any scale (normalised so the year's demand is met)."
     )
@@ -156,11 +162,14 @@ class ElectricityDemand(_Strict):
 
 class FuelDemand(_Strict):
     served_by: list[str] = Field(
-        min_length=1, description="Commodities that can meet this demand (e.g. diesel, biodiesel, synthetic_diesel)."
+        min_length=1,
+        description="Commodities that can meet this demand (e.g. diesel, biodiesel, synthetic_diesel).",
     )
     base_year_pj: Annotated[float, _quantity("PJ"), Field(ge=0)] | None = Field(None, description="[PJ/yr]")
     growth: YearPath | None = Field(None, description="Growth rate [1/yr], as for electricity.")
-    yearly_pj: Annotated[YearPath, _path("PJ")] | None = Field(None, description="Explicit demand by year [PJ/yr].")
+    yearly_pj: Annotated[YearPath, _path("PJ")] | None = Field(
+        None, description="Explicit demand by year [PJ/yr]."
+    )
 
     @model_validator(mode="after")
     def _one_way(self) -> FuelDemand:
@@ -188,7 +197,9 @@ class CapexPath(_Strict):
     base: Annotated[float, _quantity("currency/kW"), Field(ge=0)] | None = Field(
         None, description="Capex in the base year [currency/kW] (for annual_decline and learning_rate)."
     )
-    table: Annotated[YearPath, _path("currency/kW")] | None = Field(None, description="{year: capex} [currency/kW].")
+    table: Annotated[YearPath, _path("currency/kW")] | None = Field(
+        None, description="{year: capex} [currency/kW]."
+    )
     annual_decline: Annotated[float, Field(gt=-0.5, lt=1)] | None = Field(
         None, description="Constant fractional decline per year [1/yr]."
     )
@@ -196,7 +207,8 @@ class CapexPath(_Strict):
         None, description="Fractional cost fall per doubling of cumulative deployment (Wright's law)."
     )
     cumulative_deployment: Annotated[YearPath, _path("GW")] | None = Field(
-        None, description="Projected cumulative (usually global) deployment by year [GW] that drives learning."
+        None,
+        description="Projected cumulative (usually global) deployment by year [GW] that drives learning.",
     )
     floor: Annotated[float, _quantity("currency/kW"), Field(ge=0)] = Field(
         0.0, description="Capex never falls below this [currency/kW]."
@@ -237,34 +249,49 @@ class _Technology(_Strict):
     description: str = Field("", description="Free text.")
     capex: Capex = Field(description="Overnight investment [currency/kW] or a capex path.")
     fixed_om: Money_per_kW_year = Field(0.0, description="Fixed O&M [currency/kW/yr] on capacity in service.")
-    variable_om: Money_per_MWh = Field(0.0, description="Variable O&M [currency/MWh] of output (converters: of input).")
+    variable_om: Money_per_MWh = Field(
+        0.0, description="Variable O&M [currency/MWh] of output (converters: of input)."
+    )
     lifetime: Annotated[int, Field(ge=1, le=100)] = Field(description="Economic and technical lifetime [yr].")
     cost_of_capital: Annotated[float, Field(ge=0, le=0.5)] | None = Field(
-        None, description="Technology's own discount rate for annualising capex [1/yr]; default metadata.discount_rate."
+        None,
+        description="Technology's own discount rate for annualising capex [1/yr]; default metadata.discount_rate.",
     )
     existing: list[ExistingCapacity] = Field(default_factory=list)
     min_build_mw_per_year: Megawatts = Field(0.0, description="[MW/yr] built every year at least.")
     max_build_mw_per_year: Megawatts | None = Field(None, description="[MW/yr]; none means unlimited.")
-    max_total_mw: Megawatts | None = Field(None, description="Resource or siting potential [MW] in service at most.")
+    max_total_mw: Megawatts | None = Field(
+        None, description="Resource or siting potential [MW] in service at most."
+    )
     first_build_year: int | None = Field(None, description="No new builds before this year.")
-    phase_out_year: int | None = Field(None, description="No capacity in service from this year on (existing included).")
+    phase_out_year: int | None = Field(
+        None, description="No capacity in service from this year on (existing included)."
+    )
 
 
 class Generator(_Technology):
-    fuel: str | None = Field(None, description="Commodity burned; none for wind, solar, hydro, nuclear fuel in O&M.")
-    efficiency: Fraction | None = Field(None, description="Electricity out / fuel in, net calorific basis [-].")
+    fuel: str | None = Field(
+        None, description="Commodity burned; none for wind, solar, hydro, nuclear fuel in O&M."
+    )
+    efficiency: Fraction | None = Field(
+        None, description="Electricity out / fuel in, net calorific basis [-]."
+    )
     heat_rate: Annotated[float, _quantity("GJ/MWh"), Field(gt=0)] | None = Field(
-        None, description="Fuel in per electricity out [GJ/MWh]; alternative to efficiency (efficiency = 3.6 / heat rate)."
+        None,
+        description="Fuel in per electricity out [GJ/MWh]; alternative to efficiency (efficiency = 3.6 / heat rate).",
     )
     availability: float | str = Field(
-        1.0, description="Constant availability [0-1], or the name of an hourly profile in the representative days."
+        1.0,
+        description="Constant availability [0-1], or the name of an hourly profile in the representative days.",
     )
     capacity_credit: Fraction | None = Field(
         None,
         description="Share of capacity counted toward the reserve margin [-]; default: the constant availability for "
         "dispatchable plants, 0 for profile-driven ones (common practice, no source).",
     )
-    clean: bool | None = Field(None, description="Counts toward the clean-electricity share; default: burns no fossil carbon.")
+    clean: bool | None = Field(
+        None, description="Counts toward the clean-electricity share; default: burns no fossil carbon."
+    )
 
     @model_validator(mode="after")
     def _fuel(self) -> Generator:
@@ -280,21 +307,32 @@ class Generator(_Technology):
 
 
 class Storage(_Technology):
-    energy_capex: Capex = Field(description="Investment in energy capacity [currency/kWh] (capex is per kW of power).")
+    energy_capex: Capex = Field(
+        description="Investment in energy capacity [currency/kWh] (capex is per kW of power)."
+    )
     energy_fixed_om: Annotated[float, _quantity("currency/kWh/year"), Field(ge=0)] = 0.0
-    round_trip_efficiency: Annotated[float, Field(gt=0, le=1)] = Field(description="Energy out / energy in [-].")
-    capacity_credit: Fraction = Field(0.0, description="Share of power capacity counted toward the reserve margin [-].")
+    round_trip_efficiency: Annotated[float, Field(gt=0, le=1)] = Field(
+        description="Energy out / energy in [-]."
+    )
+    capacity_credit: Fraction = Field(
+        0.0, description="Share of power capacity counted toward the reserve margin [-]."
+    )
     min_duration_hours: Annotated[float, Field(ge=0)] = Field(0.0, description="Energy / power at least [h].")
-    max_duration_hours: Annotated[float, Field(gt=0)] | None = Field(None, description="Energy / power at most [h].")
+    max_duration_hours: Annotated[float, Field(gt=0)] | None = Field(
+        None, description="Energy / power at most [h]."
+    )
 
 
 class Converter(_Technology):
     input: str = Field(description="Commodity consumed (electricity for an electrolyser).")
     output: str = Field(description="Commodity produced.")
-    efficiency: Annotated[float, Field(gt=0, le=5)] = Field(description="Energy out / energy in [-] (LHV basis).")
+    efficiency: Annotated[float, Field(gt=0, le=5)] = Field(
+        description="Energy out / energy in [-] (LHV basis)."
+    )
     availability: Fraction = Field(1.0, description="Share of the year the converter can run [-].")
     process_emission_factor: Annotated[float, _quantity("tCO2/GJ"), Field(ge=0)] = Field(
-        0.0, description="CO2 released by the conversion itself per GJ of output [tCO2/GJ] (e.g. refinery own use)."
+        0.0,
+        description="CO2 released by the conversion itself per GJ of output [tCO2/GJ] (e.g. refinery own use).",
     )
 
 
@@ -303,7 +341,9 @@ class Supply(_Strict):
     output: str = Field(description="Commodity supplied.")
     origin: Literal["import", "domestic", "biomass"] = "import"
     price: Annotated[YearPath, _path("currency/GJ")] = Field(description="Price path [currency/GJ].")
-    potential_pj: Annotated[YearPath, _path("PJ")] | None = Field(None, description="Yearly supply limit [PJ/yr].")
+    potential_pj: Annotated[YearPath, _path("PJ")] | None = Field(
+        None, description="Yearly supply limit [PJ/yr]."
+    )
     phase_out_year: int | None = Field(None, description="No supply from this year on.")
 
 
@@ -315,7 +355,9 @@ class Technologies(_Strict):
 
 
 class CarbonBudget(_Strict):
-    total_mt: Annotated[float, _quantity("MtCO2"), Field(ge=0)] = Field(description="Cumulative CO2 allowed [MtCO2].")
+    total_mt: Annotated[float, _quantity("MtCO2"), Field(ge=0)] = Field(
+        description="Cumulative CO2 allowed [MtCO2]."
+    )
     first_year: int | None = Field(None, description="First year counted; default metadata.base_year.")
     last_year: int | None = Field(None, description="Last year counted; default metadata.final_year.")
 
@@ -329,10 +371,12 @@ class Policy(_Strict):
         None, description="Carbon price path [currency/tCO2] paid on every tonne emitted."
     )
     clean_electricity_share: Annotated[YearPath, _path("dimensionless")] | None = Field(
-        None, description="Minimum share of electricity demand met by clean generators, path from its first year [-]."
+        None,
+        description="Minimum share of electricity demand met by clean generators, path from its first year [-].",
     )
     reserve_margin: Annotated[float, Field(ge=0, le=2)] = Field(
-        0.15, description="Firm capacity above the year's peak demand [-]. Default 15 %: common practice, no source."
+        0.15,
+        description="Firm capacity above the year's peak demand [-]. Default 15 %: common practice, no source.",
     )
 
 
@@ -342,11 +386,14 @@ class SolverSettings(_Strict):
     )
     time_limit_s: Annotated[float, Field(gt=0)] | None = None
     threads: Annotated[int, Field(ge=0)] | None = None
-    options: dict[str, Any] = Field(default_factory=dict, description="Any further HiGHS option, by its HiGHS name.")
+    options: dict[str, Any] = Field(
+        default_factory=dict, description="Any further HiGHS option, by its HiGHS name."
+    )
     pooled_curtailment: bool = Field(
-        True, description="Generators with no fuel and no variable cost offer availability x capacity every hour, "
+        True,
+        description="Generators with no fuel and no variable cost offer availability x capacity every hour, "
         "less one shared curtailment per hour, instead of one output variable and limit row each: the same optimum "
-        "with fewer rows (see README, performance); false builds one per generator."
+        "with fewer rows (see README, performance); false builds one per generator.",
     )
 
 

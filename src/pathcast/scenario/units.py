@@ -53,7 +53,9 @@ def to_unit(value: object, unit: str, currency: str = "USD") -> float:
         if code == currency:
             return "currency"
         if code in {"USD", "EUR", "GBP", "JPY", "CNY", "INR", "CHF", "AUD", "CAD", "BRL", "ZAR"}:
-            raise UnitError(f"money in the scenario's currency {currency!r}, not {code!r} (no exchange rate is applied)")
+            raise UnitError(
+                f"money in the scenario's currency {currency!r}, not {code!r} (no exchange rate is applied)"
+            )
         return code
 
     text = _CURRENCY_TOKEN.sub(replace, text)
@@ -64,7 +66,9 @@ def to_unit(value: object, unit: str, currency: str = "USD") -> float:
     except pint.DimensionalityError:
         raise UnitError(f"a quantity convertible to {_show(unit, currency)}") from None
     except Exception:
-        raise UnitError(f"a number in {_show(unit, currency)} or a string with a unit such as '1.2 GW'") from None
+        raise UnitError(
+            f"a number in {_show(unit, currency)} or a string with a unit such as '1.2 GW'"
+        ) from None
 
 
 def _show(unit: str, currency: str) -> str:

@@ -39,26 +39,46 @@ def check_scenario(loaded: LoadedScenario) -> None:
         fail(("time", "representative_days"), duplicate, "each representative day named once")
     total_weight = sum(d.weight_days for d in days)
     if abs(total_weight - DAYS_PER_YEAR) > 1e-6:
-        fail(("time", "representative_days", "weight_days"), round(total_weight, 6), "day weights that sum to 365 days")
+        fail(
+            ("time", "representative_days", "weight_days"),
+            round(total_weight, 6),
+            "day weights that sum to 365 days",
+        )
     profiles = set(days[0].availability)
     for i, day in enumerate(days):
         where = ("time", "representative_days", i)
         if len(day.demand_shape) != HOURS_PER_DAY:
-            fail(where + ("demand_shape",), f"{len(day.demand_shape)} values", f"{HOURS_PER_DAY} hourly values for day {day.name!r}")
+            fail(
+                where + ("demand_shape",),
+                f"{len(day.demand_shape)} values",
+                f"{HOURS_PER_DAY} hourly values for day {day.name!r}",
+            )
         if min(day.demand_shape) < 0 or max(day.demand_shape) <= 0:
             fail(where + ("demand_shape",), min(day.demand_shape), "non-negative demand values, not all zero")
         if set(day.availability) != profiles:
-            fail(where + ("availability",), sorted(day.availability), f"the same profiles on every day: {sorted(profiles)}")
+            fail(
+                where + ("availability",),
+                sorted(day.availability),
+                f"the same profiles on every day: {sorted(profiles)}",
+            )
         for profile, values in day.availability.items():
             if len(values) != HOURS_PER_DAY:
-                fail(where + ("availability", profile), f"{len(values)} values", f"{HOURS_PER_DAY} hourly values")
+                fail(
+                    where + ("availability", profile),
+                    f"{len(values)} values",
+                    f"{HOURS_PER_DAY} hourly values",
+                )
             bad = [v for v in values if not 0 <= v <= 1]
             if bad:
                 fail(where + ("availability", profile), bad[0], "availability factors between 0 and 1")
 
     commodities = set(s.commodities)
     if ELECTRICITY in commodities:
-        fail(("commodities", ELECTRICITY), ELECTRICITY, "fuels only: electricity is built in and balanced hourly")
+        fail(
+            ("commodities", ELECTRICITY),
+            ELECTRICITY,
+            "fuels only: electricity is built in and balanced hourly",
+        )
     all_commodities = sorted(commodities | {ELECTRICITY})
 
     def known_commodity(path: tuple, name: str | None, allow_electricity: bool) -> None:
@@ -69,10 +89,19 @@ def check_scenario(loaded: LoadedScenario) -> None:
     # --- technologies -----------------------------------------------------------------------------------------
     tech = s.technologies
     seen: dict[str, str] = {}
-    for kind, group in (("generators", tech.generators), ("storage", tech.storage), ("converters", tech.converters), ("supplies", tech.supplies)):
+    for kind, group in (
+        ("generators", tech.generators),
+        ("storage", tech.storage),
+        ("converters", tech.converters),
+        ("supplies", tech.supplies),
+    ):
         for name in group:
             if name in seen:
-                fail(("technologies", kind, name), name, f"a name not already used in technologies.{seen[name]}")
+                fail(
+                    ("technologies", kind, name),
+                    name,
+                    f"a name not already used in technologies.{seen[name]}",
+                )
             seen[name] = kind
     years = (meta.base_year, meta.final_year)
     for name, g in tech.generators.items():
@@ -85,8 +114,11 @@ def check_scenario(loaded: LoadedScenario) -> None:
             except ValueError:
                 value = None
             if value is None and g.availability not in profiles:
-                fail(path + ("availability",), g.availability,
-                     f"a number between 0 and 1 or one of the profiles {sorted(profiles)}{did_you_mean(g.availability, profiles)}")
+                fail(
+                    path + ("availability",),
+                    g.availability,
+                    f"a number between 0 and 1 or one of the profiles {sorted(profiles)}{did_you_mean(g.availability, profiles)}",
+                )
             if value is not None and not 0 <= value <= 1:
                 fail(path + ("availability",), value, "a number between 0 and 1")
     for name, c in tech.converters.items():
@@ -97,22 +129,46 @@ def check_scenario(loaded: LoadedScenario) -> None:
             fail(path + ("output",), c.output, "an output other than the input")
     for name, sup in tech.supplies.items():
         known_commodity(("technologies", "supplies", name, "output"), sup.output, allow_electricity=False)
-    for kind, group in (("generators", tech.generators), ("storage", tech.storage), ("converters", tech.converters)):
+    for kind, group in (
+        ("generators", tech.generators),
+        ("storage", tech.storage),
+        ("converters", tech.converters),
+    ):
         for name, t in group.items():
             path = ("technologies", kind, name)
             if t.max_build_mw_per_year is not None and t.max_build_mw_per_year < t.min_build_mw_per_year:
-                fail(path + ("max_build_mw_per_year",), t.max_build_mw_per_year, f"at least min_build_mw_per_year ({t.min_build_mw_per_year!r})")
+                fail(
+                    path + ("max_build_mw_per_year",),
+                    t.max_build_mw_per_year,
+                    f"at least min_build_mw_per_year ({t.min_build_mw_per_year!r})",
+                )
             if t.phase_out_year is not None and t.min_build_mw_per_year > 0:
-                fail(path + ("min_build_mw_per_year",), t.min_build_mw_per_year, "0 for a technology with a phase-out year")
+                fail(
+                    path + ("min_build_mw_per_year",),
+                    t.min_build_mw_per_year,
+                    "0 for a technology with a phase-out year",
+                )
             for i, e in enumerate(t.existing):
                 if e.retirement_year <= meta.base_year - 100:
-                    fail(path + ("existing", i, "retirement_year"), e.retirement_year, "a plausible retirement year")
+                    fail(
+                        path + ("existing", i, "retirement_year"),
+                        e.retirement_year,
+                        "a plausible retirement year",
+                    )
             deployment = t.capex.cumulative_deployment
             if isinstance(deployment, dict) and min(deployment.values()) <= 0:
-                fail(path + ("capex", "cumulative_deployment"), min(deployment.values()), "cumulative deployment above 0 GW")
+                fail(
+                    path + ("capex", "cumulative_deployment"),
+                    min(deployment.values()),
+                    "cumulative deployment above 0 GW",
+                )
     for name, st in tech.storage.items():
         if st.max_duration_hours is not None and st.max_duration_hours < st.min_duration_hours:
-            fail(("technologies", "storage", name, "max_duration_hours"), st.max_duration_hours, "at least min_duration_hours")
+            fail(
+                ("technologies", "storage", name, "max_duration_hours"),
+                st.max_duration_hours,
+                "at least min_duration_hours",
+            )
 
     # --- demand ----------------------------------------------------------------------------------------------------
     for name, fd in s.demand.fuels.items():
@@ -140,22 +196,35 @@ def check_scenario(loaded: LoadedScenario) -> None:
         fail(("policy", "clean_electricity_share"), pol.clean_electricity_share, "a share between 0 and 1")
 
     if pol.reserve_margin > 0:
-        credited = [g.capacity_credit for g in tech.generators.values() if g.capacity_credit is None or g.capacity_credit > 0]
+        credited = [
+            g.capacity_credit
+            for g in tech.generators.values()
+            if g.capacity_credit is None or g.capacity_credit > 0
+        ]
         credited += [st.capacity_credit for st in tech.storage.values() if st.capacity_credit > 0]
         if not credited:
-            fail(("policy", "reserve_margin"), pol.reserve_margin,
-                 "0, or some generator or storage with a capacity_credit above 0 to meet it")
+            fail(
+                ("policy", "reserve_margin"),
+                pol.reserve_margin,
+                "0, or some generator or storage with a capacity_credit above 0 to meet it",
+            )
 
     # --- reachability ----------------------------------------------------------------------------------------------
     graph = commodity_graph(s)
     reachable = nx.descendants(graph, SOURCE)
     if ELECTRICITY not in reachable:
-        fail(("demand", "electricity"), ELECTRICITY,
-             "a chain of technologies that can supply electricity (no generator has a fuel that some supply or converter provides)")
+        fail(
+            ("demand", "electricity"),
+            ELECTRICITY,
+            "a chain of technologies that can supply electricity (no generator has a fuel that some supply or converter provides)",
+        )
     for name, fd in s.demand.fuels.items():
         if not any(c in reachable for c in fd.served_by):
-            fail(("demand", "fuels", name, "served_by"), fd.served_by,
-                 "at least one commodity that some chain of supplies and converters can provide")
+            fail(
+                ("demand", "fuels", name, "served_by"),
+                fd.served_by,
+                "at least one commodity that some chain of supplies and converters can provide",
+            )
 
 
 def commodity_graph(s: Scenario) -> nx.DiGraph:
