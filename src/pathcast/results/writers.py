@@ -5,46 +5,23 @@ half-written result folder."""
 from __future__ import annotations
 
 import json
-import os
-import shutil
-import tempfile
 from pathlib import Path
 from types import MappingProxyType
 
 import pandas as pd
 
 from ..errors import ScenarioError
+from .folders import atomic_folder
 from .run_result import TABLES, RunResult
 
-__all__ = ["write_result", "read_result", "atomic_folder"]
+__all__ = ["write_result", "read_result", "atomic_folder", "spreadsheet_safe", "FORMULA_STARTS"]
+
+# A text cell starting with one of these is read as a formula by spreadsheet programs; it is written with a leading
+# apostrophe so that they show it as text (OWASP, "CSV Injection", community guidance). pathcast check also refuses
+# names that start so, so in practice only free text can need it.
+FORMULA_STARTS = ("=", "+", "-", "@", "\t", "\r")
 
 EXCEL_ROW_LIMIT = 1_048_575
-
-
-class atomic_folder:
-    """Context manager: yields a temporary folder; on success it replaces ``target`` as a whole."""
-
-    def __init__(self, target: Path):
-        self.target = Path(target)
-
-    def __enter__(self) -> Path:
-        self.target.parent.mkdir(parents=True, exist_ok=True)
-        self.tmp = Path(tempfile.mkdtemp(prefix=f".{self.target.name}.", dir=self.target.parent))
-        return self.tmp
-
-    def __exit__(self, kind, error, trace) -> bool:
-        if kind is not None:
-            shutil.rmtree(self.tmp, ignore_errors=True)
-            return False
-        if self.target.exists():
-            old = self.target.with_name(f".{self.target.name}.old")
-            shutil.rmtree(old, ignore_errors=True)
-            os.replace(self.target, old)
-            os.replace(self.tmp, self.target)
-            shutil.rmtree(old, ignore_errors=True)
-        else:
-            os.replace(self.tmp, self.target)
-        return False
 
 
 def _json_default(value):
@@ -53,19 +30,58 @@ def _json_default(value):
     return str(value)
 
 
+def _escape_cell(value):
+    if isinstance(value, str) and value.startswith(FORMULA_STARTS):
+        return "'" + value
+    return value
+
+
+def _unescape_cell(value):
+    if (
+        isinstance(value, str)
+        and value.startswith("'")
+        and value[1:2]
+        and value[1:].startswith(FORMULA_STARTS)
+    ):
+        return value[1:]
+    return value
+
+
+def spreadsheet_safe(frame: pd.DataFrame) -> pd.DataFrame:
+    """``frame`` with every text cell that a spreadsheet would run as a formula prefixed by an apostrophe."""
+    text_columns = [
+        c for c in frame.columns if frame[c].dtype == object or pd.api.types.is_string_dtype(frame[c])
+    ]
+    if not text_columns:
+        return frame
+    needs = [
+        c
+        for c in text_columns
+        if frame[c].map(lambda v: isinstance(v, str) and v.startswith(FORMULA_STARTS)).any()
+    ]
+    if not needs:
+        return frame
+    frame = frame.copy()
+    for column in needs:
+        frame[column] = frame[column].map(_escape_cell)
+    return frame
+
+
 def write_result(result: RunResult, folder: Path, *, parquet: bool = True, excel: bool = True) -> Path:
     """Write every table as CSV (and Parquet), an Excel workbook of the yearly tables, summary.json and manifest.json."""
     folder = Path(folder)
-    with atomic_folder(folder) as tmp:
+    with atomic_folder(folder, kind="result") as tmp:
+        shown = {
+            name: spreadsheet_safe(result.tables[name]) for name in TABLES
+        }  # CSV and Excel; Parquet keeps raw text
         for name in TABLES:
-            frame = result.tables[name]
-            frame.to_csv(tmp / f"{name}.csv", index=False)
+            shown[name].to_csv(tmp / f"{name}.csv", index=False)
             if parquet:
-                frame.to_parquet(tmp / f"{name}.parquet", index=False)
+                result.tables[name].to_parquet(tmp / f"{name}.parquet", index=False)
         if excel:
             with pd.ExcelWriter(tmp / "results.xlsx", engine="openpyxl") as book:
                 for name in TABLES:
-                    frame = result.tables[name]
+                    frame = shown[name]
                     if len(frame) <= EXCEL_ROW_LIMIT:
                         frame.to_excel(book, sheet_name=name[:31], index=False)
         (tmp / "summary.json").write_text(json.dumps(dict(result.summary), indent=2, default=_json_default))
@@ -92,7 +108,11 @@ def read_result(folder: Path) -> RunResult:
                 f"{folder}: {name}.csv: got no such file; expected every table of a pathcast result folder.",
                 file=str(folder),
             )
-        tables[name] = pd.read_csv(path)
+        frame = pd.read_csv(path)
+        for column in frame.columns:
+            if frame[column].dtype == object or pd.api.types.is_string_dtype(frame[column]):
+                frame[column] = frame[column].map(_unescape_cell)
+        tables[name] = frame
     summary = json.loads(summary_path.read_text())
     manifest = (
         json.loads((folder / "manifest.json").read_text()) if (folder / "manifest.json").is_file() else {}

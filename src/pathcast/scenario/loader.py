@@ -8,7 +8,9 @@ from __future__ import annotations
 
 import csv
 import hashlib
+import io
 import json
+import math
 from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any
@@ -72,19 +74,161 @@ def file_for(provenance: Provenance, path: tuple, default: Path) -> Path:
     return default
 
 
+# Bounds on the work a file can ask for (README, "Scenario files"): a scenario or ensemble YAML file of at most
+# 16 MiB, a CSV table of at most 256 MiB (30 weather years of hourly data with a dozen profiles need about 40 MiB),
+# at most 100 YAML aliases per file and at most 2 million values once aliases are expanded. Common practice, no source.
+MAX_YAML_BYTES = 16 * 1024 * 1024
+MAX_CSV_BYTES = 256 * 1024 * 1024
+MAX_YAML_ALIASES = 100
+MAX_YAML_NODES = 2_000_000
+
+
+def read_text_file(path: Path, kind: str, limit: int) -> str:
+    """The text of ``path`` decoded as UTF-8 (a byte-order mark is allowed); a file that is too large or not UTF-8 is
+    a one-sentence ScenarioError naming the line and column of the first byte that is not UTF-8."""
+    path = Path(path)
+    size = path.stat().st_size
+    if size > limit:
+        raise ScenarioError(
+            f"{path}: (file): got {size:,} bytes; expected a {kind} file of at most {limit:,} bytes.",
+            file=str(path),
+        )
+    data = path.read_bytes()
+    try:
+        return data.decode("utf-8-sig")
+    except UnicodeDecodeError as error:
+        before = data[: error.start]
+        line = before.count(b"\n") + 1
+        column = error.start - (before.rfind(b"\n") + 1) + 1
+        raise ScenarioError(
+            f"{path}: line {line}, column {column}: got the byte {data[error.start]:#04x}, which is not UTF-8; "
+            f"expected a {kind} file saved as UTF-8 text (re-save it as UTF-8 in your editor).",
+            file=str(path),
+        ) from None
+
+
+class _BoundedLoader(yaml.SafeLoader):
+    """PyYAML's safe loader that refuses a key given twice in one mapping and bounds what aliases may expand to."""
+
+    def __init__(self, stream: str, path: Path):
+        super().__init__(stream)
+        self.path = path
+        self.aliases = 0
+
+    def compose_node(self, parent, index):  # type: ignore[no-untyped-def]
+        if self.check_event(yaml.AliasEvent):
+            self.aliases += 1
+            if self.aliases > MAX_YAML_ALIASES:
+                mark = self.peek_event().start_mark
+                raise ScenarioError(
+                    f"{self.path}: line {mark.line + 1}: got more than {MAX_YAML_ALIASES} YAML aliases (*name); "
+                    f"expected at most {MAX_YAML_ALIASES} in one file.",
+                    file=str(self.path),
+                )
+        return super().compose_node(parent, index)
+
+    def compose_document(self):  # type: ignore[no-untyped-def]
+        node = super().compose_document()
+        _check_composed(node, self.path)
+        return node
+
+
+def _key_text(node: yaml.Node) -> str:
+    return str(node.value) if isinstance(node, yaml.ScalarNode) else f"<{node.tag}>"
+
+
+def _check_composed(root: yaml.Node, path: Path) -> None:
+    """Refuse a key given twice in one mapping (naming the line, the key and the field path) and a document that
+    expands to more than MAX_YAML_NODES values through aliases. Each distinct node is visited once."""
+    sizes: dict[int, int] = {}
+    seen: set[int] = set()
+    stack: list[tuple[yaml.Node, tuple]] = [(root, ())]
+    while stack:
+        node, where = stack.pop()
+        if id(node) in seen:
+            continue
+        seen.add(id(node))
+        if isinstance(node, yaml.MappingNode):
+            first: dict[str, yaml.Node] = {}
+            for key, value in node.value:
+                text = _key_text(key)
+                if text in first and text != "<<":
+                    field_path = ".".join(str(p) for p in (*where, text))
+                    raise ScenarioError(
+                        f"{path}: line {key.start_mark.line + 1}: got the key {text!r} ({field_path}) a second time "
+                        f"in one mapping (first at line {first[text].start_mark.line + 1}); expected each key once.",
+                        file=str(path),
+                        field=field_path,
+                    )
+                first[text] = key
+                stack.append((value, (*where, text)))
+        elif isinstance(node, yaml.SequenceNode):
+            stack.extend((item, (*where, i)) for i, item in enumerate(node.value))
+
+    def children(node: yaml.Node) -> list[yaml.Node]:
+        if isinstance(node, yaml.MappingNode):
+            return [v for pair in node.value for v in pair]
+        if isinstance(node, yaml.SequenceNode):
+            return list(node.value)
+        return []
+
+    def size(
+        root: yaml.Node,
+    ) -> int:  # expanded size, memoised per distinct node, post-order without recursion
+        stack: list[tuple[yaml.Node, bool]] = [(root, False)]
+        open_nodes: set[int] = set()
+        while stack:
+            node, done = stack.pop()
+            if id(node) in sizes:
+                continue
+            if done:
+                sizes[id(node)] = 1 + sum(sizes[id(c)] for c in children(node))
+                open_nodes.discard(id(node))
+                continue
+            if id(node) in open_nodes:  # an alias to a node that contains it
+                mark = node.start_mark
+                raise ScenarioError(
+                    f"{path}: line {mark.line + 1}: got a YAML alias that refers to a node containing it; "
+                    "expected no recursive aliases.",
+                    file=str(path),
+                )
+            open_nodes.add(id(node))
+            stack.append((node, True))
+            stack.extend((c, False) for c in children(node) if id(c) not in sizes)
+        return sizes[id(root)]
+
+    total = size(root)
+    if total > MAX_YAML_NODES:
+        raise ScenarioError(
+            f"{path}: (file): got YAML that expands to {total:,} values through its aliases; expected at most "
+            f"{MAX_YAML_NODES:,}.",
+            file=str(path),
+        )
+
+
 def read_yaml_document(path: Path, kind: str = "scenario") -> Any:
-    """The parsed YAML of ``path``; a missing file or a syntax error is a one-sentence ScenarioError."""
+    """The parsed YAML of ``path``; a missing, oversized or non-UTF-8 file, a syntax error, a key given twice and a
+    document that aliases expand beyond the bounds above are each a one-sentence ScenarioError."""
     path = Path(path)
     if not path.is_file():
         raise ScenarioError(f"{path}: no such {kind} file.", file=str(path))
+    text = read_text_file(path, kind, MAX_YAML_BYTES)
+    loader = _BoundedLoader(text, path)
     try:
-        return yaml.safe_load(path.read_text(encoding="utf-8"))
+        return loader.get_single_data()
     except yaml.YAMLError as error:
         mark = getattr(error, "problem_mark", None)
         where = f" at line {mark.line + 1}, column {mark.column + 1}" if mark else ""
         raise ScenarioError(
             f"{path}: not valid YAML{where}: {getattr(error, 'problem', error)}.", file=str(path)
         ) from None
+    except RecursionError:
+        raise ScenarioError(
+            f"{path}: (file): got YAML nested too deeply to read; expected a scenario nested a few levels deep.",
+            file=str(path),
+        ) from None
+    finally:
+        loader.dispose()
 
 
 def _read_yaml(path: Path, referrer: tuple[Path, str] | None) -> dict[str, Any]:
@@ -171,10 +315,24 @@ def _read_year_table(path: Path) -> dict[int, Any]:
     out: dict[int, Any] = {}
     for number, row in enumerate(rows, start=2):
         try:
-            out[int(row["year"])] = float(row["value"])
+            year = int(row["year"])
         except ValueError:
-            raise located_error(path, f"line {number}", row, "a whole year and a number") from None
+            raise located_error(path, f"line {number}.year", row["year"], "a whole year") from None
+        if year in out:
+            raise located_error(path, f"line {number}.year", year, "each year once")
+        out[year] = _finite(path, number, "value", row["value"])
     return out
+
+
+def _finite(path: Path, line: int, column: str, text: str) -> float:
+    """The number in a CSV cell; an empty cell, text, inf or NaN is a located error."""
+    try:
+        value = float(text)
+    except ValueError:
+        raise located_error(path, f"line {line}.{column}", text, "a number") from None
+    if not math.isfinite(value):
+        raise located_error(path, f"line {line}.{column}", text, "a finite number")
+    return value
 
 
 DAY_COLUMNS = ("day", "weight_days", "hour", "demand")
@@ -195,16 +353,17 @@ def _read_days_csv(path: Path) -> list[dict[str, Any]]:
     for number, row in enumerate(rows, start=2):
         try:
             name = row["day"]
+            weight = _finite(path, number, "weight_days", row["weight_days"])
             day = days.setdefault(
                 name,
                 {
                     "name": name,
-                    "weight_days": float(row["weight_days"]),
+                    "weight_days": weight,
                     "demand_shape": [],
                     "availability": {p: [] for p in profiles},
                 },
             )
-            if float(row["weight_days"]) != day["weight_days"]:
+            if weight != day["weight_days"]:
                 raise located_error(
                     path,
                     f"line {number}.weight_days",
@@ -218,9 +377,9 @@ def _read_days_csv(path: Path) -> list[dict[str, Any]]:
                     row["hour"],
                     f"hour {len(day['demand_shape'])} (hours 0-23 in order)",
                 )
-            day["demand_shape"].append(float(row["demand"]))
+            day["demand_shape"].append(_finite(path, number, "demand", row["demand"]))
             for p in profiles:
-                day["availability"][p].append(float(row[p]))
+                day["availability"][p].append(_finite(path, number, p, row[p]))
         except ValueError as error:
             if isinstance(error, ScenarioError):
                 raise
@@ -231,11 +390,32 @@ def _read_days_csv(path: Path) -> list[dict[str, Any]]:
 
 
 def _read_csv(path: Path) -> list[dict[str, str]]:
-    with path.open(newline="", encoding="utf-8") as handle:
-        return [
-            {k.strip(): (v or "").strip() for k, v in row.items() if k is not None}
-            for row in csv.DictReader(handle)
-        ]
+    """Rows of a UTF-8 CSV file as {column: text}; a column named twice or a row with more cells than the header is
+    a located error."""
+    text = read_text_file(path, "CSV", MAX_CSV_BYTES)
+    reader = csv.reader(io.StringIO(text, newline=""))
+    try:
+        header = [name.strip() for name in next(reader)]
+    except StopIteration:
+        return []
+    except csv.Error as error:
+        raise located_error(path, "line 1", str(error), "a CSV header line") from None
+    twice = sorted({name for name in header if header.count(name) > 1})
+    if twice:
+        raise located_error(path, "line 1", twice, "each column named once")
+    rows = []
+    try:
+        for number, cells in enumerate(reader, start=2):
+            if not cells:
+                continue
+            if len(cells) > len(header):
+                raise located_error(
+                    path, f"line {number}", cells, f"at most {len(header)} cells, as in the header"
+                )
+            rows.append({name: (cells[i].strip() if i < len(cells) else "") for i, name in enumerate(header)})
+    except csv.Error as error:
+        raise located_error(path, f"line {reader.line_num}", str(error), "a well-formed CSV line") from None
+    return rows
 
 
 def load_scenario(path: str | Path) -> LoadedScenario:
@@ -283,6 +463,9 @@ def _explain(error: ValidationError, raw: dict, provenance: Provenance, default:
         return located_error(file, loc, name, f"one of the fields {choices}{hint}")
     if kind == "missing":
         return located_error(file, loc[:-1] or "(top level)", "nothing", f"the required field {loc[-1]!r}")
+    # a field the validators made from the user's value (capex: 900 -> capex.table) is reported where it was written
+    while len(loc) > 1 and not _exists(raw, loc):
+        loc = loc[:-1]
     value = value_at(raw, loc)
     message = first["msg"]
     for prefix in ("Value error, ", "Assertion failed, "):
@@ -293,6 +476,16 @@ def _explain(error: ValidationError, raw: dict, provenance: Provenance, default:
         message = message[0].lower() + message[1:] if message else "a valid value"
         message = message.replace("input should be ", "")
     return located_error(file, loc or "(top level)", value, message)
+
+
+def _exists(raw: Any, loc: tuple) -> bool:
+    node = raw
+    for part in loc:
+        try:
+            node = node[part]
+        except (KeyError, IndexError, TypeError):
+            return False
+    return True
 
 
 def value_at(raw: Any, loc: tuple) -> Any:

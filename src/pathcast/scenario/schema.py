@@ -12,10 +12,20 @@ has already replaced CSV names by mappings when these models see them.
 
 from __future__ import annotations
 
+import math
 from typing import Annotated, Any, Literal
 
-from pydantic import BaseModel, BeforeValidator, ConfigDict, Field, ValidationInfo, model_validator
+from pydantic import (
+    BaseModel,
+    BeforeValidator,
+    ConfigDict,
+    Field,
+    ValidationInfo,
+    field_validator,
+    model_validator,
+)
 
+from ..results.folders import check_folder_name, safe_folder_name
 from .units import UnitError, to_unit
 
 __all__ = [
@@ -54,8 +64,22 @@ def _quantity(unit: str):
     return BeforeValidator(convert)
 
 
-def _path(unit: str):
-    """A time path in ``unit``: number, ``{year: value}`` mapping, converted value by value."""
+def _path(unit: str, minimum: float | None = 0.0, above: float | None = None, maximum: float | None = None):
+    """A time path in ``unit``: number, ``{year: value}`` mapping, converted value by value. Every value must be
+    finite, at least ``minimum`` (``None``: any sign), strictly above ``above`` and at most ``maximum`` when given."""
+
+    def check(item: float, year: int | None, currency: str) -> float:
+        where = f" for {year}" if year is not None else ""
+        shown = "" if unit == "dimensionless" else " " + unit.replace("currency", currency)
+        if not math.isfinite(item):
+            raise ValueError(f"a finite number{where}, not {item!r}")
+        if minimum is not None and item < minimum:
+            raise ValueError(f"a value of at least {minimum:g}{shown}{where}, not {item!r}")
+        if above is not None and item <= above:
+            raise ValueError(f"a value above {above:g}{shown}{where}, not {item!r}")
+        if maximum is not None and item > maximum:
+            raise ValueError(f"a value of at most {maximum:g}{shown}{where}, not {item!r}")
+        return item
 
     def convert(value: Any, info: ValidationInfo) -> Any:
         currency = (info.context or {}).get("currency", "USD")
@@ -63,15 +87,17 @@ def _path(unit: str):
             if isinstance(value, dict):
                 out = {}
                 for year, item in value.items():
+                    if isinstance(year, bool):
+                        raise ValueError(f"years as keys of the mapping, not {year!r}")
                     try:
                         year_int = int(year)
                     except (TypeError, ValueError):
                         raise ValueError(f"years as keys of the mapping, not {year!r}") from None
-                    out[year_int] = to_unit(item, unit, currency)
+                    out[year_int] = check(to_unit(item, unit, currency), year_int, currency)
                 if not out:
                     raise ValueError("at least one {year: value} entry")
                 return out
-            return to_unit(value, unit, currency)
+            return check(to_unit(value, unit, currency), None, currency)
         except UnitError as error:
             raise ValueError(str(error)) from None
 
@@ -87,13 +113,21 @@ MegawattHours = Annotated[float, _quantity("MWh"), Field(ge=0)]
 Fraction = Annotated[float, Field(ge=0, le=1)]
 YearPath = dict[int, float] | float
 
+# Growth rates: above -100 %/yr (demand cannot fall below zero) and at most +100 %/yr (a doubling every year; faster
+# growth is better written as yearly_twh / yearly_pj). Common practice, no source.
+GrowthPath = Annotated[YearPath, _path("dimensionless", minimum=None, above=-1.0, maximum=1.0)]
+
 
 class _Strict(BaseModel):
-    model_config = ConfigDict(extra="forbid", frozen=True)
+    # every number must be finite: inf and NaN are refused in every field (YAML .inf/.nan, "inf" strings, CSV cells)
+    model_config = ConfigDict(extra="forbid", frozen=True, allow_inf_nan=False)
 
 
 class Metadata(_Strict):
-    name: str = Field(description="Short scenario name; the result folder is named after it.")
+    name: str = Field(
+        description="Short scenario name; the result folder results/<name> is named after it: 1 to 64 letters, "
+        "digits, '_', '-' and '.', starting with a letter, digit or '_'."
+    )
     description: str = Field("", description="Free text.")
     country: str = Field("", description="Country or region studied.")
     base_year: int = Field(ge=1900, le=2200, description="First modelled year.")
@@ -114,6 +148,14 @@ class Metadata(_Strict):
     illustrative: bool = Field(
         False, description="True when the numbers are invented (the demo); memos say so."
     )
+
+    @field_validator("name")
+    @classmethod
+    def _folder_name(cls, value: str) -> str:
+        problem = check_folder_name(value)
+        if problem:
+            raise ValueError(f"{problem} (it names the result folder), e.g. {safe_folder_name(value)!r}")
+        return value
 
     @model_validator(mode="after")
     def _years(self) -> Metadata:
@@ -146,8 +188,10 @@ class ElectricityDemand(_Strict):
     base_year_twh: Annotated[float, _quantity("TWh"), Field(gt=0)] | None = Field(
         None, description="Final electricity demand in the base year [TWh/yr]."
     )
-    growth: YearPath | None = Field(
-        None, description="Growth rate [1/yr]: one number, or {first year of period: rate} for periods."
+    growth: GrowthPath | None = Field(
+        None,
+        description="Growth rate [1/yr], above -1 and at most 1: one number, or {first year of period: rate} for "
+        "periods.",
     )
     yearly_twh: Annotated[YearPath, _path("TWh")] | None = Field(
         None, description="Explicit demand by year [TWh/yr]; replaces base_year_twh and growth."
@@ -166,7 +210,7 @@ class FuelDemand(_Strict):
         description="Commodities that can meet this demand (e.g. diesel, biodiesel, synthetic_diesel).",
     )
     base_year_pj: Annotated[float, _quantity("PJ"), Field(ge=0)] | None = Field(None, description="[PJ/yr]")
-    growth: YearPath | None = Field(None, description="Growth rate [1/yr], as for electricity.")
+    growth: GrowthPath | None = Field(None, description="Growth rate [1/yr], as for electricity.")
     yearly_pj: Annotated[YearPath, _path("PJ")] | None = Field(
         None, description="Explicit demand by year [PJ/yr]."
     )
@@ -370,7 +414,7 @@ class Policy(_Strict):
     carbon_price: Annotated[YearPath, _path("currency/tCO2")] | None = Field(
         None, description="Carbon price path [currency/tCO2] paid on every tonne emitted."
     )
-    clean_electricity_share: Annotated[YearPath, _path("dimensionless")] | None = Field(
+    clean_electricity_share: Annotated[YearPath, _path("dimensionless", maximum=1.0)] | None = Field(
         None,
         description="Minimum share of electricity demand met by clean generators, path from its first year [-].",
     )

@@ -14,11 +14,29 @@ from .schema import ELECTRICITY, Scenario
 if TYPE_CHECKING:
     from .loader import LoadedScenario
 
-__all__ = ["check_scenario", "commodity_graph", "HOURS_PER_DAY", "DAYS_PER_YEAR"]
+__all__ = ["check_scenario", "commodity_graph", "name_problem", "HOURS_PER_DAY", "DAYS_PER_YEAR", "NAME_MAX"]
 
 HOURS_PER_DAY = 24
 DAYS_PER_YEAR = 365.0
 SOURCE = "(primary supply)"
+NAME_MAX = 64
+# A name may not start with a character that spreadsheet programs read as the start of a formula (OWASP, "CSV
+# Injection"), so that no table cell pathcast writes can run as one; the writers escape free text as well.
+_FORMULA_STARTS = ("=", "+", "-", "@")
+
+
+def name_problem(name: object) -> str | None:
+    """None when ``name`` may name a technology, commodity, demand, day or profile, else what is expected."""
+    text = str(name)
+    if not text.strip():
+        return "a non-empty name"
+    if len(text) > NAME_MAX:
+        return f"a name of at most {NAME_MAX} characters"
+    if text.startswith(_FORMULA_STARTS) or text != text.strip():
+        return "a name that starts with a letter, digit or '_' (not '=', '+', '-', '@' or a space)"
+    if any(ord(c) < 32 or ord(c) == 127 for c in text):
+        return "a name without control characters (tabs, line breaks)"
+    return None
 
 
 def check_scenario(loaded: LoadedScenario) -> None:
@@ -31,6 +49,24 @@ def check_scenario(loaded: LoadedScenario) -> None:
         raise located_error(loaded.file_of(path), path, value, expected)
 
     meta = s.metadata
+    # --- names: they become table cells, figure labels and file names ------------------------------------------
+    named = [
+        (("time", "representative_days", i, "name"), d.name) for i, d in enumerate(s.time.representative_days)
+    ]
+    named += [(("commodities", n), n) for n in s.commodities]
+    named += [(("demand", "fuels", n), n) for n in s.demand.fuels]
+    for kind in ("generators", "storage", "converters", "supplies"):
+        named += [(("technologies", kind, n), n) for n in getattr(s.technologies, kind)]
+    if s.time.representative_days:
+        named += [
+            (("time", "representative_days", 0, "availability", p), p)
+            for p in s.time.representative_days[0].availability
+        ]
+    for where, name in named:
+        problem = name_problem(name)
+        if problem:
+            fail(where, name, problem)
+
     # --- time structure -------------------------------------------------------------------------------------
     days = s.time.representative_days
     names = [d.name for d in days]
