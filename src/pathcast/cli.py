@@ -2,6 +2,9 @@
 
 Exit codes: 0 ok, 2 bad input, 3 infeasible target, 4 solver failure (1 for an unexpected internal error).
 Each command lives in ``pathcast.commands.<name>`` with ``add_arguments(parser)`` and ``execute(args) -> int``.
+Only the module of the command being run is imported (``--help`` and ``--version`` import none), and each command
+module imports its heavy dependencies (Pyomo, HiGHS, pandas, matplotlib, dask) inside ``execute``, so the command line
+starts in a fraction of a second; ``tests/test_cli_imports.py`` guards this and ``benchmarks/cli_startup.py`` times it.
 """
 
 from __future__ import annotations
@@ -9,11 +12,11 @@ from __future__ import annotations
 import argparse
 import importlib
 import sys
-from collections.abc import Sequence
+from collections.abc import Iterable, Sequence
 
-from .errors import EXIT_BAD_INPUT, PathcastError
+from .errors import EXIT_BAD_INPUT, PathcastError, did_you_mean
 
-__all__ = ["main", "COMMANDS"]
+__all__ = ["main", "build_parser", "command_in", "COMMANDS"]
 
 # name -> (module under pathcast.commands, one-line help)
 COMMANDS: dict[str, tuple[str, str]] = {
@@ -35,13 +38,32 @@ COMMANDS: dict[str, tuple[str, str]] = {
     ),
 }
 
+_TOP_OPTIONS = {"-h", "--help", "--version"}  # top-level options; they take no value
+
 
 class _Parser(argparse.ArgumentParser):
     def error(self, message: str):  # one sentence, exit code 2, no usage dump
         self.exit(EXIT_BAD_INPUT, f"pathcast: {message}; see 'pathcast --help'.\n")
 
 
-def build_parser() -> argparse.ArgumentParser:
+def command_in(argv: Sequence[str]) -> str | None:
+    """The command named in ``argv`` (its first word that is not an option), or None.
+
+    The top-level options (``--help``, ``--version``) take no value, so the first such word is the command.
+    """
+    for token in argv:
+        if token == "--":
+            continue
+        if not token.startswith("-"):
+            return token
+    return None
+
+
+def build_parser(commands: Iterable[str] | None = None) -> argparse.ArgumentParser:
+    """The argument parser; ``commands`` names the commands whose modules are imported to add their arguments.
+
+    Every command is listed in ``--help`` either way; None imports them all (the complete parser).
+    """
     parser = _Parser(
         prog="pathcast",
         description="Least-cost decarbonisation pathways under a carbon budget "
@@ -52,7 +74,11 @@ def build_parser() -> argparse.ArgumentParser:
     parser.add_argument("--version", action="version", version=f"pathcast {__version__}")
     sub = parser.add_subparsers(dest="command", metavar="COMMAND", parser_class=_Parser)
     sub.required = True
+    wanted = set(COMMANDS) if commands is None else set(commands)
     for name, (module_name, help_text) in COMMANDS.items():
+        if name not in wanted:
+            sub.add_parser(name, help=help_text)
+            continue
         module = importlib.import_module(f"pathcast.commands.{module_name}")
         command = sub.add_parser(name, help=help_text, description=module.__doc__)
         module.add_arguments(command)
@@ -61,7 +87,17 @@ def build_parser() -> argparse.ArgumentParser:
 
 
 def main(argv: Sequence[str] | None = None) -> int:
-    parser = build_parser()
+    argv = sys.argv[1:] if argv is None else list(argv)
+    command = command_in(argv)
+    parser = build_parser([] if command is None else [command])
+    if (
+        command is not None
+        and command not in COMMANDS
+        and not set(argv[: argv.index(command)]) & _TOP_OPTIONS
+    ):
+        parser.error(
+            f"got command {command!r}{did_you_mean(command, COMMANDS)}; expected one of {', '.join(COMMANDS)}"
+        )
     args = parser.parse_args(argv)
     try:
         return int(args._execute(args) or 0)

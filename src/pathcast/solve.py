@@ -18,10 +18,9 @@ from pyomo.repn.plugins.standard_form import LinearStandardFormCompiler
 
 from .errors import SolverError
 from .model.pyomo_model import PyomoHandles
+from .solver_methods import METHODS
 
 __all__ = ["SolverOptions", "Solution", "handoff", "solve_highs", "highs_options_for", "new_highs", "METHODS"]
-
-METHODS = ("auto", "simplex", "ipm", "ipm-crossover", "pdlp")
 
 
 @dataclass(frozen=True)

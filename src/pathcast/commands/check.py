@@ -5,8 +5,6 @@ from __future__ import annotations
 import argparse
 import json
 
-from ..scenario.loader import load_scenario
-
 
 def add_arguments(parser: argparse.ArgumentParser) -> None:
     parser.add_argument("file", help="scenario YAML file")
@@ -14,6 +12,8 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
 
 
 def execute(args: argparse.Namespace) -> int:
+    from ..scenario.loader import load_scenario  # pydantic, pint, networkx: only when a file is checked
+
     loaded = load_scenario(args.file)
     s = loaded.scenario
     t = s.technologies

@@ -13,19 +13,16 @@ import math
 from collections.abc import Callable, Sequence
 from dataclasses import dataclass
 from pathlib import Path
-
-import pandas as pd
+from typing import TYPE_CHECKING
 
 from ..errors import ScenarioError
-from ..pipeline import run_scenario
-from ..report.console import CAUTION
-from ..report.figures import overlay_figures, save_figure
-from ..report.memo import format_value
-from ..results.compare import compare, metric_label
-from ..results.run_result import RunResult
-from ..results.writers import atomic_folder, read_result
-from ..scenario.loader import LoadedScenario, load_scenario
 from . import progress_printer
+
+if TYPE_CHECKING:  # the heavy modules are imported where they are used
+    import pandas as pd
+
+    from ..results.run_result import RunResult
+    from ..scenario.loader import LoadedScenario
 
 __all__ = ["add_arguments", "execute", "Source", "gather_results", "check_output_folder", "render_comparison"]
 
@@ -43,6 +40,10 @@ def gather_results(
     paths: Sequence[str | Path], progress: Callable[[str], None] | None = None
 ) -> list[Source]:
     """Solve each scenario file and read each result folder, in the order given."""
+    from ..pipeline import run_scenario
+    from ..results.writers import read_result
+    from ..scenario.loader import load_scenario
+
     say = progress or (lambda _message: None)
     sources = []
     for item in paths:
@@ -96,6 +97,9 @@ def comparison_json(table: pd.DataFrame) -> dict[str, dict[str, object]]:
 
 def render_comparison(table: pd.DataFrame) -> str:
     """Plain-text rendering of the comparison table for the terminal (rounded; comparison.csv holds exact values)."""
+    from ..report.memo import format_value
+    from ..results.compare import metric_label
+
     labels = [metric_label(str(m)) for m in table.index]
     cells = [
         [format_value(v, str(m)) for v in row]
@@ -134,6 +138,11 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
 
 
 def execute(args: argparse.Namespace) -> int:
+    from ..report.console import CAUTION
+    from ..report.figures import overlay_figures, save_figure
+    from ..results.compare import compare
+    from ..results.writers import atomic_folder
+
     progress = progress_printer(args.quiet)
 
     check_output_folder(args.out, "comparison.csv", "compare")

@@ -10,12 +10,13 @@ import argparse
 import json
 import math
 from pathlib import Path
+from typing import TYPE_CHECKING
 
-from ..analysis.achievability import explain
-from ..analysis.delay import DelayStudy, delayed_action
 from ..errors import ScenarioError
-from ..results.writers import atomic_folder
 from . import progress_printer
+
+if TYPE_CHECKING:  # the heavy modules are imported where they are used
+    from ..analysis.delay import DelayStudy
 
 __all__ = ["add_arguments", "execute", "parse_years", "render_text", "render_json", "write_study"]
 
@@ -82,6 +83,8 @@ def _num(value, fmt: str, width: int) -> str:
 
 
 def render_text(study: DelayStudy) -> str:
+    from ..analysis.achievability import explain
+
     cur = study.currency
     t = study.terms
     lines = [
@@ -129,6 +132,8 @@ def render_text(study: DelayStudy) -> str:
 
 def write_study(study: DelayStudy, folder: Path) -> Path:
     """delay.csv (the table), delay_pathways.csv, delay_stranded.csv and delay.json, written atomically."""
+    from ..results.writers import atomic_folder
+
     with atomic_folder(Path(folder)) as tmp:
         study.table.to_csv(tmp / "delay.csv", index=False)
         study.pathways().to_csv(tmp / "delay_pathways.csv", index=False)
@@ -138,6 +143,7 @@ def write_study(study: DelayStudy, folder: Path) -> Path:
 
 
 def execute(args: argparse.Namespace) -> int:
+    from ..analysis.delay import delayed_action
     from ..scenario.inputs import prepare_inputs
     from ..scenario.loader import load_scenario
 

@@ -17,22 +17,27 @@ from __future__ import annotations
 import argparse
 import math
 from pathlib import Path
-
-import pandas as pd
+from typing import TYPE_CHECKING
 
 from ..errors import ScenarioError
-from ..report.memo import MemoEnsemble, MemoInput, build_memo, write_memo
-from ..results.assumptions import assumptions_table, metadata_assumptions
-from ..results.compare import scenario_labels
-from ..scenario.loader import load_scenario
 from . import progress_printer
 from .compare import Source, check_output_folder, gather_results
+
+if TYPE_CHECKING:  # the heavy modules are imported where they are used
+    import pandas as pd
+
+    from ..report.memo import MemoEnsemble
 
 __all__ = ["add_arguments", "execute", "assumptions_of", "default_folder", "split_inputs", "read_ensemble"]
 
 
 def assumptions_of(source: Source) -> tuple[pd.DataFrame, str]:
     """(assumptions table, note) of one input; the note is empty when the table is complete."""
+    import pandas as pd
+
+    from ..results.assumptions import assumptions_table, metadata_assumptions
+    from ..scenario.loader import load_scenario
+
     if source.loaded is not None:
         return assumptions_table(source.loaded), ""
     result = source.result
@@ -58,6 +63,8 @@ def assumptions_of(source: Source) -> tuple[pd.DataFrame, str]:
 
 
 def default_folder(sources: list[Source], ensembles: list[MemoEnsemble] | None = None) -> Path:
+    from ..results.compare import scenario_labels
+
     if not sources:
         names = [e.name for e in ensembles or []]
         return Path("results") / (f"{names[0]}_memo" if len(names) == 1 else "ensemble_memo")
@@ -97,6 +104,8 @@ def split_inputs(paths: list[str | Path]) -> tuple[list[Path], list[Path]]:
 
 def _base_illustrative(base: str, base_hash: str) -> bool:
     """metadata.illustrative of the ensemble's base scenario, when its file is unchanged since the ensemble ran."""
+    from ..scenario.loader import load_scenario
+
     if not base or not Path(base).is_file():
         return False
     try:
@@ -111,6 +120,7 @@ def read_ensemble(folder: Path) -> MemoEnsemble:
     folder's own figures/) and the numbers of the finding, both summarised from its member records."""
     from ..ensemble import ensemble_robustness_section
     from ..ensemble.summary import summarise_ensemble
+    from ..report.memo import MemoEnsemble
 
     folder = Path(folder)
     summary = summarise_ensemble(folder)
@@ -174,6 +184,8 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
 
 
 def execute(args: argparse.Namespace) -> int:
+    from ..report.memo import MemoInput, build_memo, write_memo
+
     progress = progress_printer(args.quiet)
 
     if args.out is not None:

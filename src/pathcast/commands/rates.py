@@ -14,19 +14,16 @@ import json
 import math
 from dataclasses import dataclass
 from pathlib import Path
-
-import pandas as pd
+from typing import TYPE_CHECKING
 
 from ..errors import ScenarioError
-from ..results.budget import BudgetAccount, budget_accounting
-from ..results.reduction_rates import (
-    default_start_years,
-    realised_rates,
-    require_budget_terms,
-    required_rates_table,
-)
-from ..results.run_result import RunResult
 from . import progress_printer
+
+if TYPE_CHECKING:  # the heavy modules are imported where they are used
+    import pandas as pd
+
+    from ..results.budget import BudgetAccount
+    from ..results.run_result import RunResult
 
 __all__ = [
     "add_arguments",
@@ -96,6 +93,8 @@ def start_years_from(
     if step < 1:
         raise ScenarioError(f"--step {step!r}: expected a whole number of years >= 1.")
     if from_year is None and to_year is None and step == 5:
+        from ..results.reduction_rates import default_start_years
+
         return default_start_years(result, terms)
     first = from_year if from_year is not None else max(terms.first_year, int(result.summary["base_year"]))
     last = to_year if to_year is not None else min(terms.last_year, int(result.summary["final_year"]))
@@ -114,6 +113,9 @@ def compute_rates(
     step: int = 5,
     budget_mt: float | None = None,
 ) -> RatesReport:
+    from ..results.budget import budget_accounting
+    from ..results.reduction_rates import realised_rates, require_budget_terms, required_rates_table
+
     terms = require_budget_terms(result, budget_mt)
     starts = start_years_from(result, terms, from_year, to_year, step)
     required = required_rates_table(result, starts, budget_mt=budget_mt)

@@ -6,14 +6,14 @@ import argparse
 import sys
 from dataclasses import replace
 from pathlib import Path
+from typing import TYPE_CHECKING
 
 from ..errors import InfeasibleError, ScenarioError
-from ..pipeline import Run, run_scenario
-from ..report.console import render_profile, render_summary
-from ..results.run_result import RunResult
-from ..results.writers import write_result
-from ..solve import METHODS
+from ..solver_methods import METHODS
 from . import progress_printer
+
+if TYPE_CHECKING:
+    from ..pipeline import Run
 
 
 def add_arguments(parser: argparse.ArgumentParser) -> None:
@@ -53,6 +53,9 @@ def execute(args: argparse.Namespace) -> int:
     progress = progress_printer(args.quiet)
 
     from ..analysis.achievability import diagnose_budget, explain
+    from ..pipeline import run_scenario
+    from ..report.console import render_profile, render_summary
+    from ..results.writers import write_result
 
     solver = {"method": args.method, "time_limit_s": args.time_limit, "log": args.solver_log}
     overshoot_price = getattr(args, "allow_overshoot", None)
@@ -130,6 +133,8 @@ def execute(args: argparse.Namespace) -> int:
 
 def _with_overshoot(run: Run, price: float) -> Run:
     """The run with its budget overshoot [MtCO2] and its cost [million currency, undiscounted] in the summary."""
+    from ..results.run_result import RunResult
+
     block = run.model.lp.variables["budget_overshoot"]
     overshoot = max(0.0, float(run.solution.x[block.all()].sum()))
     r = run.result
