@@ -9,6 +9,7 @@ from __future__ import annotations
 
 import json
 import os
+import re
 import shutil
 from pathlib import Path
 
@@ -397,3 +398,57 @@ def test_a_file_over_the_size_limit_is_refused(tmp_path, monkeypatch):
         match=r"tiny\.yaml: \(file\): got [\d,]+ bytes; expected a scenario file of at most 100 bytes",
     ):
         load_scenario(DATA / "tiny.yaml")
+
+
+# --- cases the fuzz test found (tests/test_fuzz.py) ---------------------------------------------------------------
+
+
+@pytest.mark.parametrize(
+    ("column", "value", "expected"),
+    [
+        ("demand", "-1", "a demand value of at least 0"),
+        ("solar", "1e40", "an availability factor from 0 to 1"),
+    ],
+)
+def test_out_of_range_cells_of_the_days_csv_name_the_csv_line_and_column(
+    tmp_path, capsys, column, value, expected
+):
+    shutil.copytree(DEMO, tmp_path / "demo")
+    days = tmp_path / "demo" / "representative_days.csv"
+    lines = days.read_text().splitlines()
+    header = lines[0].split(",")
+    cells = lines[18].split(",")
+    cells[header.index(column)] = value
+    lines[18] = ",".join(cells)
+    days.write_text("\n".join(lines) + "\n")
+    code, err = _check(capsys, tmp_path / "demo" / "budget.yaml")
+    assert code == 2 and f"{days}: line 19.{column}: got {value!r}; expected {expected}." in err
+
+
+@pytest.mark.parametrize(
+    ("change", "where"),
+    [
+        (lambda m: m["policy"]["carbon_budget"].update(last_year=0), "policy.carbon_budget.last_year: got 0"),
+        (
+            lambda m: m["technologies"]["generators"]["gas_combined_cycle"]["existing"][0].update(
+                retirement_year=10**40
+            ),
+            "technologies.generators.gas_combined_cycle.existing.0.retirement_year",
+        ),
+        (
+            lambda m: m["technologies"]["converters"]["fuel_synthesis"].update(first_build_year=1e30),
+            "technologies.converters.fuel_synthesis.first_build_year: got 1e+30; expected a whole year from 1900",
+        ),
+    ],
+    ids=["budget_last_year_zero", "huge_retirement_year", "float_first_build_year"],
+)
+def test_years_outside_any_plausible_range_are_refused(tmp_path, change, where):
+    path = _changed(tmp_path, change)
+    with pytest.raises(ScenarioError, match=re.escape(where)):
+        load_scenario(path)
+
+
+def test_a_currency_that_is_no_code_is_reported_not_crashed_on(tmp_path):
+    path = _changed(tmp_path, lambda m: m["metadata"].update(currency=42))
+    with pytest.raises(ScenarioError, match=r"metadata\.currency: got 42; expected"):
+        load_scenario(path)

@@ -377,9 +377,19 @@ def _read_days_csv(path: Path) -> list[dict[str, Any]]:
                     row["hour"],
                     f"hour {len(day['demand_shape'])} (hours 0-23 in order)",
                 )
-            day["demand_shape"].append(_finite(path, number, "demand", row["demand"]))
+            demand = _finite(path, number, "demand", row["demand"])
+            if demand < 0:
+                raise located_error(
+                    path, f"line {number}.demand", row["demand"], "a demand value of at least 0"
+                )
+            day["demand_shape"].append(demand)
             for p in profiles:
-                day["availability"][p].append(_finite(path, number, p, row[p]))
+                factor = _finite(path, number, p, row[p])
+                if not 0 <= factor <= 1:
+                    raise located_error(
+                        path, f"line {number}.{p}", row[p], "an availability factor from 0 to 1"
+                    )
+                day["availability"][p].append(factor)
         except ValueError as error:
             if isinstance(error, ScenarioError):
                 raise
@@ -418,6 +428,13 @@ def _read_csv(path: Path) -> list[dict[str, str]]:
     return rows
 
 
+def _currency_of(raw: dict[str, Any]) -> str:
+    """metadata.currency for converting unit strings; the schema reports a currency that is not a code."""
+    meta = raw.get("metadata")
+    currency = meta.get("currency", "USD") if isinstance(meta, dict) else "USD"
+    return currency if isinstance(currency, str) else "USD"
+
+
 def load_scenario(path: str | Path) -> LoadedScenario:
     """Read, merge and validate a scenario; raise ScenarioError with a located one-sentence message."""
     from .validation import check_scenario
@@ -425,9 +442,7 @@ def load_scenario(path: str | Path) -> LoadedScenario:
     path = Path(path)
     raw, provenance, files = read_yaml_with_extends(path)
     raw = _resolve_csv(raw, (), provenance, path.resolve())
-    currency = (
-        raw.get("metadata", {}).get("currency", "USD") if isinstance(raw.get("metadata"), dict) else "USD"
-    )
+    currency = _currency_of(raw)
     try:
         scenario = Scenario.model_validate(raw, context={"currency": currency})
     except ValidationError as error:
@@ -572,9 +587,7 @@ def load_scenario_mapping(
 
     path = Path(path).resolve()
     provenance = provenance or {}
-    currency = (
-        raw.get("metadata", {}).get("currency", "USD") if isinstance(raw.get("metadata"), dict) else "USD"
-    )
+    currency = _currency_of(raw)
     try:
         scenario = Scenario.model_validate(raw, context={"currency": currency})
     except ValidationError as error:

@@ -29,6 +29,7 @@ SECTIONS: tuple[tuple[str, type[BaseModel]], ...] = (
     ("policy", schema.Policy),
     ("policy.carbon_budget", schema.CarbonBudget),
     ("solver", schema.SolverSettings),
+    ("extensions[]", schema.Extension),
 )
 
 

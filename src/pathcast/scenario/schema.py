@@ -47,6 +47,7 @@ __all__ = [
     "Policy",
     "CarbonBudget",
     "SolverSettings",
+    "Extension",
     "ELECTRICITY",
 ]
 
@@ -70,7 +71,7 @@ def _path(unit: str, minimum: float | None = 0.0, above: float | None = None, ma
 
     def check(item: float, year: int | None, currency: str) -> float:
         where = f" for {year}" if year is not None else ""
-        shown = "" if unit == "dimensionless" else " " + unit.replace("currency", currency)
+        shown = "" if unit == "dimensionless" else " " + unit.replace("currency", str(currency))
         if not math.isfinite(item):
             raise ValueError(f"a finite number{where}, not {item!r}")
         if minimum is not None and item < minimum:
@@ -111,6 +112,27 @@ Money_per_MWh = Annotated[float, _quantity("currency/MWh"), Field(ge=0)]
 Megawatts = Annotated[float, _quantity("MW"), Field(ge=0)]
 MegawattHours = Annotated[float, _quantity("MWh"), Field(ge=0)]
 Fraction = Annotated[float, Field(ge=0, le=1)]
+
+
+def _whole(kind: str, low: int, high: int):
+    """A whole number (a float such as 2030.0 is accepted; 2030.5, 1e30, inf and true/false are not); the range
+    ``low``-``high`` is checked by the field's own bounds."""
+
+    def convert(value: Any) -> Any:
+        if isinstance(value, bool):
+            raise ValueError(f"a whole {kind} from {low} to {high}, not a true/false value")
+        if isinstance(value, float):
+            if not math.isfinite(value) or not value.is_integer() or abs(value) > 1e9:
+                raise ValueError(f"a whole {kind} from {low} to {high}")
+            return int(value)
+        return value
+
+    return BeforeValidator(convert)
+
+
+# Calendar years of a planning study: 1900-2200 (wide enough for any history and horizon; common practice, no source)
+Year = Annotated[int, _whole("year", 1900, 2200), Field(ge=1900, le=2200)]
+Lifetime = Annotated[int, _whole("number of years", 1, 100), Field(ge=1, le=100)]
 YearPath = dict[int, float] | float
 
 # Growth rates: above -100 %/yr (demand cannot fall below zero) and at most +100 %/yr (a doubling every year; faster
@@ -130,10 +152,10 @@ class Metadata(_Strict):
     )
     description: str = Field("", description="Free text.")
     country: str = Field("", description="Country or region studied.")
-    base_year: int = Field(ge=1900, le=2200, description="First modelled year.")
-    final_year: int = Field(ge=1900, le=2200, description="Last modelled year (inclusive).")
+    base_year: Year = Field(description="First modelled year.")
+    final_year: Year = Field(description="Last modelled year (inclusive).")
     currency: str = Field("USD", pattern=r"^[A-Z]{3}$", description="ISO 4217 code of every money amount.")
-    price_year: int = Field(description="Year whose money all amounts are in (real terms).")
+    price_year: Year = Field(description="Year whose money all amounts are in (real terms).")
     discount_rate: Annotated[float, Field(ge=0, le=0.5)] = Field(
         description="Social discount rate [1/yr] for the present value of system cost; also the default cost of capital."
     )
@@ -285,7 +307,7 @@ Capex = Annotated[CapexPath, BeforeValidator(_capex)]
 
 class ExistingCapacity(_Strict):
     capacity_mw: Megawatts = Field(description="Capacity in service in the base year [MW].")
-    retirement_year: int = Field(description="First year the capacity is no longer in service.")
+    retirement_year: Year = Field(description="First year the capacity is no longer in service.")
     energy_mwh: MegawattHours = Field(0.0, description="Storage only: energy capacity [MWh].")
 
 
@@ -296,7 +318,7 @@ class _Technology(_Strict):
     variable_om: Money_per_MWh = Field(
         0.0, description="Variable O&M [currency/MWh] of output (converters: of input)."
     )
-    lifetime: Annotated[int, Field(ge=1, le=100)] = Field(description="Economic and technical lifetime [yr].")
+    lifetime: Lifetime = Field(description="Economic and technical lifetime [yr].")
     cost_of_capital: Annotated[float, Field(ge=0, le=0.5)] | None = Field(
         None,
         description="Technology's own discount rate for annualising capex [1/yr]; default metadata.discount_rate.",
@@ -307,8 +329,8 @@ class _Technology(_Strict):
     max_total_mw: Megawatts | None = Field(
         None, description="Resource or siting potential [MW] in service at most."
     )
-    first_build_year: int | None = Field(None, description="No new builds before this year.")
-    phase_out_year: int | None = Field(
+    first_build_year: Year | None = Field(None, description="No new builds before this year.")
+    phase_out_year: Year | None = Field(
         None, description="No capacity in service from this year on (existing included)."
     )
 
@@ -388,7 +410,7 @@ class Supply(_Strict):
     potential_pj: Annotated[YearPath, _path("PJ")] | None = Field(
         None, description="Yearly supply limit [PJ/yr]."
     )
-    phase_out_year: int | None = Field(None, description="No supply from this year on.")
+    phase_out_year: Year | None = Field(None, description="No supply from this year on.")
 
 
 class Technologies(_Strict):
@@ -402,8 +424,8 @@ class CarbonBudget(_Strict):
     total_mt: Annotated[float, _quantity("MtCO2"), Field(ge=0)] = Field(
         description="Cumulative CO2 allowed [MtCO2]."
     )
-    first_year: int | None = Field(None, description="First year counted; default metadata.base_year.")
-    last_year: int | None = Field(None, description="Last year counted; default metadata.final_year.")
+    first_year: Year | None = Field(None, description="First year counted; default metadata.base_year.")
+    last_year: Year | None = Field(None, description="Last year counted; default metadata.final_year.")
 
 
 class Policy(_Strict):
@@ -441,6 +463,18 @@ class SolverSettings(_Strict):
     )
 
 
+class Extension(_Strict):
+    file: str = Field(
+        description="Python file, relative to the scenario file, whose function adds rules to the model (README, "
+        "Extensions)."
+    )
+    function: str = Field(
+        "extend",
+        pattern=r"^[A-Za-z_][A-Za-z0-9_]*$",
+        description="Name of the function in that file; it receives (model, inputs).",
+    )
+
+
 class Scenario(_Strict):
     metadata: Metadata
     time: TimeStructure
@@ -449,3 +483,6 @@ class Scenario(_Strict):
     technologies: Technologies
     policy: Policy = Field(default_factory=Policy)
     solver: SolverSettings = Field(default_factory=SolverSettings)
+    extensions: list[Extension] = Field(
+        default_factory=list, description="Users' own rules in Pyomo, applied in order (README, Extensions)."
+    )

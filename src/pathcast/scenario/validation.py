@@ -214,8 +214,8 @@ def check_scenario(loaded: LoadedScenario) -> None:
     # --- policy ----------------------------------------------------------------------------------------------------
     pol = s.policy
     if pol.carbon_budget is not None:
-        first = pol.carbon_budget.first_year or meta.base_year
-        last = pol.carbon_budget.last_year or meta.final_year
+        first = meta.base_year if pol.carbon_budget.first_year is None else pol.carbon_budget.first_year
+        last = meta.final_year if pol.carbon_budget.last_year is None else pol.carbon_budget.last_year
         for field_name, year in (("first_year", first), ("last_year", last)):
             if not years[0] <= year <= years[1]:
                 fail(("policy", "carbon_budget", field_name), year, f"a year from {years[0]} to {years[1]}")
@@ -244,6 +244,13 @@ def check_scenario(loaded: LoadedScenario) -> None:
                 pol.reserve_margin,
                 "0, or some generator or storage with a capacity_credit above 0 to meet it",
             )
+
+    # --- extensions: the file must exist beside the scenario that names it ---------------------------------------
+    for i, extension in enumerate(s.extensions):
+        where = ("extensions", i, "file")
+        owner = loaded.file_of(where)
+        if not (owner.parent / extension.file).is_file():
+            fail(where, extension.file, f"an existing Python file (relative to {owner.name})")
 
     # --- reachability ----------------------------------------------------------------------------------------------
     graph = commodity_graph(s)
