@@ -122,15 +122,17 @@ def test_failed_member_is_reported_and_the_others_finish(data_dir, tmp_path, cou
     )
     assert code == 0
     captured = capsys.readouterr()
-    assert "3 members (3 distinct scenarios), 2 solved, 1 failed" in captured.out
-    assert "member 1 (sample): ScenarioError: " in captured.err
+    assert "4 members (4 distinct scenarios), 3 solved, 1 failed" in captured.out
+    # each year is valid alone (checked when the file is read); together they break a rule between fields, found
+    # when the member is validated before its solve: one located sentence naming the file, inputs and values
     assert (
-        "technologies.generators.solar_pv.lifetime: got 0; expected greater than or equal to 1."
-        in captured.err
+        f"member 3 (sample): ScenarioError: {data_dir / 'ensemble_fail.yaml'}: the member with "
+        "inputs.first_year = 2027 and inputs.last_year = 2026: got a scenario whose field metadata breaks the "
+        "scenario's rule; expected " in captured.err
     )
     members = pd.read_csv(out / "tables" / "members.csv")
-    assert list(members["status"]) == ["solved", "failed", "solved"]
-    assert members.loc[1, "error_type"] == "ScenarioError"
+    assert list(members["status"]) == ["solved", "solved", "solved", "failed"]
+    assert members.loc[3, "error_type"] == "ScenarioError"
     # a re-run keeps the invalid member's record (it would fail again) unless asked to retry it
     count_solves.clear()
     assert (
@@ -242,4 +244,4 @@ def test_cli_connects_to_an_existing_scheduler(data_dir, tmp_path, capsys):
         )
     assert code == 0
     out = capsys.readouterr().out
-    assert f"(scheduler {address}, 1 worker)" in out and "2 solved, 1 failed" in out
+    assert f"(scheduler {address}, 1 worker)" in out and "3 solved, 1 failed" in out

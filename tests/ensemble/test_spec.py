@@ -213,3 +213,17 @@ def test_summary_of_a_folder_that_is_no_ensemble(tmp_path):
         r"'pathcast ensemble'\.$",
     ):
         ensemble_robustness_section(tmp_path)
+
+
+def test_a_key_given_twice_names_the_file_line_and_key(write_ensemble):
+    # the ensemble file is read with the scenario loader's YAML reader, which refuses duplicate keys
+    text = header("grid", "") + (
+        "  margin:\n    path: policy.reserve_margin\n    as: absolute\n    values: [0.1]\n    values: [0.2]\n"
+    )
+    path = write_ensemble(text)
+    with pytest.raises(
+        ScenarioError,
+        match=rf"^{re.escape(str(path))}: line 9: got the key 'values' \(inputs\.margin\.values\) a second time in "
+        r"one mapping \(first at line 8\); expected each key once\.$",
+    ):
+        load_ensemble(path)

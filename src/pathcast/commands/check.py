@@ -1,4 +1,6 @@
-"""Validate a scenario file (and the files it extends and reads) without building or solving anything."""
+"""Validate a scenario file (and the files it extends and reads) without building or solving anything. An ensemble
+file (one with 'inputs' and 'design') is validated as one, with its base scenario and the range of every input, and
+the outcome names the command that reads it, 'pathcast ensemble'."""
 
 from __future__ import annotations
 
@@ -7,13 +9,18 @@ import json
 
 
 def add_arguments(parser: argparse.ArgumentParser) -> None:
-    parser.add_argument("file", help="scenario YAML file")
+    parser.add_argument("file", help="scenario YAML file (or ensemble file)")
     parser.add_argument("--json", action="store_true", help="print the outcome as JSON")
 
 
 def execute(args: argparse.Namespace) -> int:
+    from ..ensemble.spec import ensemble_facts_if_ensemble
     from ..scenario.loader import load_scenario  # pydantic, pint, networkx: only when a file is checked
 
+    ensemble = ensemble_facts_if_ensemble(args.file)
+    if ensemble is not None:
+        print(json.dumps(ensemble, indent=2) if args.json else ensemble["sentence"])
+        return 0
     loaded = load_scenario(args.file)
     s = loaded.scenario
     t = s.technologies

@@ -1,6 +1,11 @@
 """Run an ensemble of variants of a scenario (sensitivity and uncertainty): sample the inputs named in the ensemble
 file, solve every member (in parallel on a dask.distributed cluster unless --serial), store each member as it
-finishes (a re-run resumes), and write tables, percentiles and fan charts to results/<ensemble name>/."""
+finishes (a re-run resumes), and write tables, percentiles and fan charts to results/<ensemble name>/.
+
+With --scheduler tcp://host:port the address is checked first: a malformed one (no tcp:// or tls:// scheme, no
+port, a port outside 1-65535) is refused at once (exit 2); a scheduler that does not answer as a dask scheduler
+within --connect-timeout seconds (default 10) is an error naming the address (exit 4), and nothing is written to the
+output folder before the connection is made."""
 
 from __future__ import annotations
 
@@ -24,7 +29,16 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
         "--scheduler",
         default=None,
         metavar="ADDRESS",
-        help="connect to this running dask scheduler (e.g. tcp://10.0.0.5:8786) instead of a local cluster",
+        help="connect to this running dask scheduler (tcp://host:port or tls://host:port, e.g. "
+        "tcp://10.0.0.5:8786) instead of a local cluster",
+    )
+    parser.add_argument(
+        "--connect-timeout",
+        type=float,
+        default=10.0,  # pathcast.ensemble.scheduler.DEFAULT_CONNECT_TIMEOUT_S (not imported: keeps --help light)
+        metavar="S",
+        help="seconds the --scheduler address has to answer as a dask scheduler before the run is refused "
+        "(default 10)",
     )
     parser.add_argument(
         "--out", type=Path, default=None, help="ensemble folder (default: results/<ensemble name>)"
@@ -46,7 +60,11 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
 
 def execute(args: argparse.Namespace) -> int:
     from ..ensemble import run_ensemble
+    from ..ensemble.scheduler import parse_connect_timeout, parse_scheduler_address
 
+    if args.scheduler is not None:  # a malformed address is refused before the ensemble file is even read
+        parse_scheduler_address(args.scheduler)
+    parse_connect_timeout(args.connect_timeout)
     if args.workers is not None and args.workers < 1:
         from ..errors import ScenarioError
 
@@ -58,6 +76,7 @@ def execute(args: argparse.Namespace) -> int:
         args.out,
         workers=args.workers,
         scheduler=args.scheduler,
+        connect_timeout=args.connect_timeout,
         serial=args.serial,
         limit=args.limit,
         retry_failed=args.retry_failed,

@@ -6,22 +6,33 @@ stored member by member (resumable) and summarised as tidy tables, percentiles, 
 module              content
 ==================  ==================================================================================================
 spec                the ensemble file (pydantic), field paths into the merged base scenario, located errors
+validity            finite and plausible numbers; every value an input can take inside its scenario field's rule
 sampling            designs: Latin hypercube + inverse CDFs, grid, one-at-a-time
 members             a member's scenario mapping (samples applied to the base) and its SHA-256
 worker              one member's build and solve in a worker (warm start from the base basis), compact record
-store               DIR/members/<hash>.json written atomically; the base basis
-runner              run_ensemble(): plan, skip what is stored, serial or dask, progress, outputs
+store               DIR/members/<hash>.json written atomically; the base basis; leftovers of killed writes
+scheduler           the --scheduler address: malformed ones refused, a scheduler that must answer within a timeout
+runner              run_ensemble(): plan, skip what is stored, connect, serial or dask, progress, outputs
 summary             tidy tables, percentiles, probability within budget, tornado, rank correlations
 figures             fan charts, distributions, budget probability, tornado
-outputs             DIR/tables (CSV, Parquet), DIR/figures (PNG), DIR/summary.json
+outputs             DIR/tables (CSV, Parquet), DIR/figures (PNG), DIR/summary.json as one set, DIR/outputs.json
 robustness          ensemble_robustness_section(ensemble_dir) -> Markdown for a memo
 ==================  ==================================================================================================
+
+The public names below are imported on first use (module ``__getattr__``), so that ``pathcast check`` can look at an
+ensemble file's spec without loading pandas, SciPy or dask.
 """
 
-from .robustness import ensemble_robustness_section
-from .runner import EnsembleRun, run_ensemble
-from .spec import EnsembleSpec, load_ensemble
-from .summary import EnsembleSummary, summarise_ensemble
+from __future__ import annotations
+
+import importlib
+from typing import TYPE_CHECKING, Any
+
+if TYPE_CHECKING:  # the same names, for type checkers and editors
+    from .robustness import ensemble_robustness_section
+    from .runner import EnsembleRun, run_ensemble
+    from .spec import EnsembleSpec, load_ensemble
+    from .summary import EnsembleSummary, summarise_ensemble
 
 __all__ = [
     "load_ensemble",
@@ -32,3 +43,27 @@ __all__ = [
     "EnsembleSummary",
     "ensemble_robustness_section",
 ]
+
+# public name -> module (under pathcast.ensemble) that defines it
+_LAZY_NAMES: dict[str, str] = {
+    "load_ensemble": ".spec",
+    "EnsembleSpec": ".spec",
+    "run_ensemble": ".runner",
+    "EnsembleRun": ".runner",
+    "summarise_ensemble": ".summary",
+    "EnsembleSummary": ".summary",
+    "ensemble_robustness_section": ".robustness",
+}
+
+
+def __getattr__(name: str) -> Any:
+    module_name = _LAZY_NAMES.get(name)
+    if module_name is None:
+        raise AttributeError(f"module {__name__!r} has no attribute {name!r}")
+    value = getattr(importlib.import_module(module_name, __name__), name)
+    globals()[name] = value
+    return value
+
+
+def __dir__() -> list[str]:
+    return sorted(set(globals()) | set(__all__))

@@ -381,4 +381,4 @@ def ensemble_figures(summary: EnsembleSummary) -> dict[str, Figure]:
 def save_png(fig: Figure, path: Path | str, dpi: int = DPI) -> Path:
     """Write a figure as PNG through a temporary file and ``os.replace``."""
     FigureCanvasAgg(fig)
-    return write_atomic(Path(path), lambda tmp: fig.savefig(tmp, dpi=dpi, format="png"), suffix=".png")
+    return write_atomic(Path(path), lambda tmp: fig.savefig(tmp, dpi=dpi, format="png"))

@@ -1,19 +1,67 @@
-"""Write an ensemble's summary: DIR/tables/ (CSV and Parquet), DIR/figures/ (PNG) and DIR/summary.json. Each folder
-is replaced as a whole (``atomic_folder``); DIR/members/ is never touched here."""
+"""Write an ensemble's summary set -- DIR/tables/ (CSV and Parquet), DIR/figures/ (PNG), DIR/summary.json -- and, last,
+DIR/outputs.json, the manifest saying which files belong together; check that manifest when reading.
+
+Chosen design: a manifest written last (the folder layout readers know stays as it is). One write goes:
+
+1. what interrupted writes left in DIR is removed (staging folders ``.outputs.tmp-<pid>-<random>`` of processes that
+   no longer run; the ``.tables.*`` and ``.figures.*`` temporary folders of earlier pathcast versions);
+2. the whole set is written into one staging folder, DIR/.outputs.tmp-<pid>-<random>/ (tables/, figures/,
+   summary.json), and its manifest is computed there: a run id, the state of the members it summarises (how many
+   solved, failed, pending, and a SHA-256 over every member's hash and status) and every file with its size in bytes
+   and SHA-256;
+3. DIR/outputs.json is removed, so from here until step 5 the folder says its set is incomplete;
+4. tables/, figures/ and summary.json are moved from the staging folder into place (renames within DIR; the
+   previous ones go into the staging folder, which is then deleted). A run without figures (``--no-figures``) removes
+   the figures/ of an earlier run, which would no longer belong to the tables;
+5. DIR/outputs.json is written (temporary file, then ``os.replace``).
+
+A kill before step 3 leaves the previous set with its manifest; during steps 3-4 no manifest (readers refuse and say
+to run the ensemble again, which solves nothing already stored and rewrites the set); after step 5 the new set.
+Readers -- :func:`verify_outputs`, called by :func:`pathcast.ensemble.ensemble_robustness_section` and so by
+``pathcast memo`` on an ensemble folder -- refuse, in one sentence, a folder whose tables, figures or summary.json are
+there without outputs.json, whose listed files are missing or differ in size or SHA-256, which holds files the
+manifest does not list, or whose members changed since the set was written. A whole tables/ or figures/ folder left
+out (a copy without figures) mixes nothing and is accepted; so is a folder with none of the three (written with
+``outputs=False``), which reads as members only.
+
+tables/ and figures/ are replaced only when every file in them is one this module writes; anything else there is
+refused before a member is solved (:func:`check_output_targets`). DIR itself must be new, empty, or an ensemble folder
+(it holds ensemble.json or pathcast's marker file), and not the current folder, one of its parents, the home folder or
+the filesystem root (:func:`check_ensemble_folder`, the rules of :mod:`pathcast.results.folders`); the runner writes
+the marker file into DIR once the executor is ready.
+"""
 
 from __future__ import annotations
 
+import hashlib
+import json
 import math
+import os
+import shutil
+import tempfile
+import time
+import uuid
 from pathlib import Path
 
 import pandas as pd
 
-from ..results.writers import atomic_folder
-from .figures import ensemble_figures, save_png
-from .store import write_json_atomic
+from ..errors import ScenarioError
+from .store import remove_leftovers, temporary_prefix, write_json_atomic
 from .summary import EnsembleSummary
 
-__all__ = ["write_ensemble_outputs", "TABLE_FILES"]
+__all__ = [
+    "write_ensemble_outputs",
+    "verify_outputs",
+    "read_outputs_manifest",
+    "check_output_targets",
+    "check_ensemble_folder",
+    "mark_ensemble_folder",
+    "members_state",
+    "TABLE_FILES",
+    "FIGURE_FILES",
+    "MANIFEST",
+    "SET_ENTRIES",
+]
 
 TABLE_FILES = (
     "members",
@@ -24,6 +72,10 @@ TABLE_FILES = (
     "tornado",
     "correlations",
 )
+FIGURE_FILES = ("emissions_fan", "capacity_fan", "distributions", "budget_probability", "tornado")
+MANIFEST = "outputs.json"
+SET_ENTRIES = ("tables", "figures", "summary.json")
+_LEGACY_PREFIXES = (".tables.", ".figures.")  # atomic_folder's temporary and .old folders of earlier versions
 
 
 def _parquet_ready(frame: pd.DataFrame) -> pd.DataFrame:
@@ -49,11 +101,124 @@ def _clean(value):
     return value
 
 
-def write_ensemble_outputs(
-    summary: EnsembleSummary, folder: Path | str | None = None, *, figures: bool = True
-) -> list[Path]:
-    folder = Path(folder or summary.folder)
-    written: list[Path] = []
+def members_state(summary: EnsembleSummary) -> dict:
+    """How many members are solved, failed and pending, and a SHA-256 over every member's index, hash and status:
+    the state of the member records a set of outputs summarises."""
+    members = summary.members
+    rows = [
+        [int(index), str(digest), str(status)]
+        for index, digest, status in zip(members["member"], members["hash"], members["status"], strict=True)
+    ]
+    status = members["status"]
+    return {
+        "solved": int((status == "solved").sum()),
+        "failed": int((status == "failed").sum()),
+        "pending": int((status == "pending").sum()),
+        "sha256": hashlib.sha256(json.dumps(rows).encode()).hexdigest(),
+    }
+
+
+def _file_facts(path: Path) -> dict:
+    digest = hashlib.sha256()
+    with open(path, "rb") as handle:
+        for block in iter(lambda: handle.read(1 << 20), b""):
+            digest.update(block)
+    return {"bytes": path.stat().st_size, "sha256": digest.hexdigest()}
+
+
+def _ours(entry: Path) -> bool:
+    """Is every file in tables/ or figures/ one this module writes (or a temporary file of its writer)?"""
+    if entry.name == "tables":
+        names = {f"{n}.{suffix}" for n in TABLE_FILES for suffix in ("csv", "parquet")}
+    else:
+        names = {f"{n}.png" for n in FIGURE_FILES}
+    return all(
+        child.is_file() and (child.name in names or child.name.startswith(tuple(f".{n}.tmp-" for n in names)))
+        for child in entry.iterdir()
+    )
+
+
+def check_output_targets(folder: Path | str) -> None:
+    """Refuse (ScenarioError) a DIR whose tables/, figures/ or summary.json is something this module did not write,
+    before anything is solved or written."""
+    folder = Path(folder)
+    for name in SET_ENTRIES:
+        entry = folder / name
+        if not (entry.exists() or entry.is_symlink()):
+            continue
+        wanted_dir = name != "summary.json"
+        if entry.is_symlink() or entry.is_dir() != wanted_dir or (wanted_dir and not _ours(entry)):
+            what = "a folder" if wanted_dir else "a file"
+            raise ScenarioError(
+                f"{entry}: got {'a link' if entry.is_symlink() else 'something'} pathcast did not write there; "
+                f"expected {what} of an ensemble's outputs (pathcast replaces only its own): move it away or "
+                "choose another --out.",
+                file=str(entry),
+            )
+
+
+def check_ensemble_folder(folder: Path | str) -> None:
+    """Refuse (ScenarioError) an ensemble folder that pathcast must not write into (see the module's description),
+    before anything is solved or written; reads only."""
+    from ..results.folders import OWNER_MARKER
+
+    shown = str(folder)
+    resolved = Path(os.path.abspath(folder))
+    here = Path.cwd().resolve()
+    if (
+        resolved in {Path(resolved.anchor), Path.home().resolve()}
+        or resolved == here
+        or resolved in here.parents
+    ):
+        raise ScenarioError(
+            f"{shown}: ensemble folder: got the current folder, one of its parents, the home folder or the "
+            "filesystem root; expected a folder of its own for the ensemble (e.g. results/my_ensemble).",
+            file=shown,
+        )
+    if resolved.exists() and not resolved.is_dir():
+        raise ScenarioError(
+            f"{shown}: ensemble folder: got a file; expected a folder (pathcast never replaces a file it did not "
+            "write): choose another --out.",
+            file=shown,
+        )
+    if resolved.is_dir() and not (
+        (resolved / "ensemble.json").is_file() or (resolved / OWNER_MARKER).is_file()
+    ):
+        others = sorted(p.name for p in resolved.iterdir())
+        if others:
+            listed = ", ".join(repr(n) for n in others[:3]) + (" ..." if len(others) > 3 else "")
+            raise ScenarioError(
+                f"{shown}: ensemble folder: got a folder that pathcast did not write (it holds {listed}); expected "
+                "a new or empty folder, or one written by 'pathcast ensemble': choose another --out.",
+                file=shown,
+            )
+    check_output_targets(folder)
+
+
+def mark_ensemble_folder(folder: Path | str) -> None:
+    """Write pathcast's marker file into the ensemble folder (once), so other commands know pathcast wrote it."""
+    from ..results.folders import OWNER_MARKER
+
+    marker = Path(folder) / OWNER_MARKER
+    if not marker.is_file():
+        data = {
+            "written_by": "pathcast",
+            "kind": "ensemble",
+            "written_at": time.strftime("%Y-%m-%dT%H:%M:%S%z"),
+        }
+        write_json_atomic(marker, data)
+
+
+def _remove_interrupted(folder: Path) -> None:
+    remove_leftovers(folder)
+    for entry in folder.iterdir():
+        if entry.is_dir() and not entry.is_symlink() and entry.name.startswith(_LEGACY_PREFIXES):
+            shutil.rmtree(entry, ignore_errors=True)
+
+
+def _write_set(summary: EnsembleSummary, stage: Path, figures: bool, run_id: str) -> None:
+    from .figures import ensemble_figures, save_png
+
     frames = {
         "members": summary.members,
         "yearly": summary.yearly,
@@ -63,21 +228,21 @@ def write_ensemble_outputs(
         "tornado": summary.tornado,
         "correlations": summary.correlations,
     }
-    with atomic_folder(folder / "tables") as tmp:
-        for name, frame in frames.items():
-            if frame is None:
-                continue
-            frame = _parquet_ready(frame)
-            frame.to_csv(tmp / f"{name}.csv", index=False)
-            frame.to_parquet(tmp / f"{name}.parquet", index=False)
-    written += sorted((folder / "tables").iterdir())
+    tables = stage / "tables"
+    tables.mkdir()
+    for name, frame in frames.items():
+        if frame is None:
+            continue
+        frame = _parquet_ready(frame)
+        frame.to_csv(tables / f"{name}.csv", index=False)
+        frame.to_parquet(tables / f"{name}.parquet", index=False)
     if figures:
-        with atomic_folder(folder / "figures") as tmp:
-            for name, fig in ensemble_figures(summary).items():
-                save_png(fig, tmp / f"{name}.png")
-        written += sorted((folder / "figures").glob("*.png"))
+        (stage / "figures").mkdir()
+        for name, fig in ensemble_figures(summary).items():
+            save_png(fig, stage / "figures" / f"{name}.png")
     design = summary.design
     data = {
+        "run_id": run_id,
         "name": design["name"],
         "design": design["design"],
         "base": design["base"],
@@ -94,5 +259,133 @@ def write_ensemble_outputs(
             for row in summary.headline_percentiles.to_dict("records")
         },
     }
-    written.append(write_json_atomic(folder / "summary.json", data))
-    return written
+    write_json_atomic(stage / "summary.json", data)
+
+
+def _listed(stage: Path) -> dict[str, dict]:
+    files = {}
+    for name in SET_ENTRIES:
+        entry = stage / name
+        if entry.is_dir():
+            for child in sorted(entry.iterdir()):
+                files[f"{name}/{child.name}"] = _file_facts(child)
+        elif entry.is_file():
+            files[name] = _file_facts(entry)
+    return files
+
+
+def write_ensemble_outputs(
+    summary: EnsembleSummary, folder: Path | str | None = None, *, figures: bool = True
+) -> list[Path]:
+    """Write DIR/tables, DIR/figures (unless ``figures`` is False), DIR/summary.json and DIR/outputs.json as one set
+    (see the module's description); return the files written. DIR/members/ is never touched here."""
+    folder = Path(folder or summary.folder)
+    folder.mkdir(parents=True, exist_ok=True)
+    check_output_targets(folder)
+    _remove_interrupted(folder)
+    run_id = uuid.uuid4().hex
+    stage = Path(tempfile.mkdtemp(prefix=temporary_prefix("outputs"), dir=folder))
+    try:
+        _write_set(summary, stage, figures, run_id)
+        manifest = {
+            "written_by": "pathcast ensemble",
+            "run_id": run_id,
+            "written_at": time.strftime("%Y-%m-%dT%H:%M:%S%z"),
+            "ensemble": summary.design.get("name"),
+            "members": members_state(summary),
+            "figures": bool(figures),
+            "files": _listed(stage),
+        }
+        (folder / MANIFEST).unlink(missing_ok=True)
+        previous = stage / "previous"
+        previous.mkdir()
+        for name in SET_ENTRIES:
+            target, new = folder / name, stage / name
+            if target.exists():
+                os.replace(target, previous / name)
+            if new.exists():
+                os.replace(new, target)
+        write_json_atomic(folder / MANIFEST, manifest)
+    finally:
+        shutil.rmtree(stage, ignore_errors=True)
+    return [folder / relative for relative in manifest["files"]] + [folder / MANIFEST]
+
+
+def read_outputs_manifest(folder: Path | str) -> dict | None:
+    """DIR/outputs.json, or None when there is none (or it cannot be read as JSON)."""
+    path = Path(folder) / MANIFEST
+    if not path.is_file():
+        return None
+    try:
+        data = json.loads(path.read_text(encoding="utf-8"))
+    except (OSError, ValueError):
+        return None
+    return data if isinstance(data, dict) and isinstance(data.get("files"), dict) else None
+
+
+def _again(summary: EnsembleSummary | None) -> str:
+    file = (summary.design.get("file") if summary is not None else None) or "ENSEMBLE_FILE"
+    return (
+        f"run 'pathcast ensemble {file} --out {summary.folder if summary is not None else 'DIR'}' again "
+        "(it solves nothing already stored and rewrites the tables, figures and summary.json together)"
+    )
+
+
+def verify_outputs(folder: Path | str, summary: EnsembleSummary | None = None) -> dict | None:
+    """Check that DIR's tables, figures and summary.json are the one set its outputs.json lists (sizes and
+    SHA-256, nothing unlisted) and, given the folder's ``summary``, that they summarise the members stored now.
+    Return the manifest, or None when the folder holds no outputs at all; ScenarioError otherwise."""
+    folder = Path(folder)
+    present = [name for name in SET_ENTRIES if (folder / name).exists()]
+    manifest = read_outputs_manifest(folder)
+    if manifest is None:
+        if not present:
+            return None
+        raise ScenarioError(
+            f"{folder / MANIFEST}: got no readable manifest beside {', '.join(present)}; expected the outputs.json "
+            "that 'pathcast ensemble' writes last, naming the files of one run (an earlier write was interrupted, "
+            f"or an older pathcast wrote this folder): {_again(summary)}.",
+            file=str(folder / MANIFEST),
+        )
+    run = manifest.get("run_id", "?")
+    listed = manifest["files"]
+    for relative, facts in listed.items():
+        path = folder / relative
+        if "/" in relative and not path.parent.exists():
+            continue  # a whole folder left out (copied without its figures, say) mixes nothing
+        if not path.is_file():
+            raise ScenarioError(
+                f"{folder / MANIFEST}: got no file {relative}; expected every file of run {run} that outputs.json "
+                f"lists: {_again(summary)}.",
+                file=str(folder / MANIFEST),
+            )
+        found = _file_facts(path)
+        if found != facts:
+            raise ScenarioError(
+                f"{path}: got {found['bytes']} bytes with SHA-256 {found['sha256'][:12]}...; expected the "
+                f"{facts.get('bytes')} bytes with SHA-256 {str(facts.get('sha256'))[:12]}... that run {run} wrote "
+                f"(outputs.json): {_again(summary)}.",
+                file=str(path),
+            )
+    for name in ("tables", "figures"):
+        if (folder / name).is_dir():
+            extra = sorted(
+                f"{name}/{p.name}" for p in (folder / name).iterdir() if f"{name}/{p.name}" not in listed
+            )
+            if extra:
+                raise ScenarioError(
+                    f"{folder / name}: got {extra[0]!r}, which outputs.json does not list; expected only the files of "
+                    f"run {run}: {_again(summary)}.",
+                    file=str(folder / name),
+                )
+    if summary is not None:
+        then, now = manifest.get("members") or {}, members_state(summary)
+        if then.get("sha256") != now["sha256"]:
+            raise ScenarioError(
+                f"{folder / MANIFEST}: got outputs of run {run} written when {then.get('solved', '?')} members were "
+                f"solved, {then.get('failed', '?')} failed and {then.get('pending', '?')} pending; expected outputs "
+                f"of the members stored now ({now['solved']} solved, {now['failed']} failed, {now['pending']} "
+                f"pending): {_again(summary)}.",
+                file=str(folder / MANIFEST),
+            )
+    return manifest

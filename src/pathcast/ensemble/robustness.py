@@ -1,4 +1,5 @@
-"""The robustness section of a memo (Markdown), made from an ensemble folder."""
+"""The robustness section of a memo (Markdown), made from an ensemble folder whose outputs are one complete set
+(:func:`pathcast.ensemble.outputs.verify_outputs`: the figures it links belong to the numbers it shows)."""
 
 from __future__ import annotations
 
@@ -30,8 +31,12 @@ def ensemble_robustness_section(
     """Markdown section on how robust the pathway is across an ensemble (from ``pathcast ensemble``'s folder):
     members solved, percentiles of the headline figures, the probability of staying within the carbon budget, the
     most influential inputs and the fan chart. Figure links point into ``figure_folder`` (default: the ensemble's
-    own figures/ folder, as given)."""
+    own figures/ folder, as given). ScenarioError when the folder's tables, figures and summary.json are not the one
+    set its outputs.json lists for the members stored now (an interrupted write, or members solved since)."""
+    from .outputs import verify_outputs
+
     summary = summarise_ensemble(ensemble_dir)
+    verify_outputs(ensemble_dir, summary)
     return render_robustness(
         summary,
         heading_level=heading_level,

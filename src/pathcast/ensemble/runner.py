@@ -5,6 +5,12 @@ finishes, then write the summary tables and figures.
 Resuming: members are stored under the SHA-256 of their fully resolved scenario, so a re-run (after an interruption,
 or with more members) solves only the scenarios not stored yet. The base scenario's optimal basis is kept in
 DIR/basis/<base hash>.npz so a resumed run does not solve the base again.
+
+Order: everything that can fail without a solve happens before anything is written to DIR -- the ensemble file and
+its ranges (:func:`pathcast.ensemble.spec.load_ensemble`), the ``scheduler`` address and the output folder
+(:func:`pathcast.ensemble.outputs.check_ensemble_folder`) are checked, then the executor starts: a local cluster, or a connection to the scheduler, which must answer as a dask
+scheduler within ``connect_timeout`` seconds (:mod:`pathcast.ensemble.scheduler`). Only then are DIR/ensemble.json
+and the members written, so a wrong or unreachable address leaves DIR as it was (not even created).
 """
 
 from __future__ import annotations
@@ -23,9 +29,17 @@ from pathlib import Path
 from ..errors import PathcastError
 from ..pipeline import package_versions
 from .members import member_mapping, overrides_for, scenario_hash
+from .outputs import check_ensemble_folder, mark_ensemble_folder
 from .sampling import Member, design_members
+from .scheduler import (
+    DEFAULT_CONNECT_TIMEOUT_S,
+    SchedulerUnreachableError,
+    check_scheduler,
+    parse_connect_timeout,
+    parse_scheduler_address,
+)
 from .spec import EnsembleSpec, load_ensemble
-from .store import MemberStore, write_json_atomic
+from .store import MemberStore, remove_leftovers, write_json_atomic
 from .worker import MemberTask, SharedContext, solve_base, solve_member
 
 __all__ = ["run_ensemble", "EnsembleRun", "ProgressBar", "plan_members", "write_design"]
@@ -177,8 +191,15 @@ class _Serial:
 
 
 class _Dask:
-    def __init__(self, workers: int, scheduler: str | None, client=None):
+    def __init__(
+        self,
+        workers: int,
+        scheduler: str | None,
+        client=None,
+        connect_timeout: float = DEFAULT_CONNECT_TIMEOUT_S,
+    ):
         self.requested, self.scheduler, self.client, self.own = workers, scheduler, client, client is None
+        self.connect_timeout = connect_timeout
         self.cluster = None
 
     def __enter__(self):
@@ -191,7 +212,18 @@ class _Dask:
             ) from None
         if self.client is None:
             if self.scheduler:
-                self.client = Client(self.scheduler)
+                check_scheduler(
+                    self.scheduler, self.connect_timeout
+                )  # answers as a scheduler, within the timeout
+                try:
+                    self.client = Client(self.scheduler, timeout=f"{self.connect_timeout}s")
+                except (OSError, TimeoutError) as error:  # it answered the check a moment ago, then went away
+                    raise SchedulerUnreachableError(
+                        f"--scheduler: got {type(error).__name__} while connecting to {self.scheduler}; expected "
+                        f"a dask scheduler address such as tcp://host:8786 that answers within "
+                        f"{self.connect_timeout:g} s (start the scheduler, check the address, or raise "
+                        "--connect-timeout)."
+                    ) from None
             else:
                 with (
                     warnings.catch_warnings()
@@ -261,6 +293,7 @@ def run_ensemble(
     *,
     workers: int | None = None,
     scheduler: str | None = None,
+    connect_timeout: float = DEFAULT_CONNECT_TIMEOUT_S,
     serial: bool = False,
     limit: int | None = None,
     retry_failed: bool = False,
@@ -271,15 +304,19 @@ def run_ensemble(
     client=None,
     on_record: Callable[[dict], None] | None = None,
 ) -> EnsembleRun:
-    """Run (or resume) an ensemble and write DIR/ensemble.json, DIR/members/*.json, DIR/tables, DIR/figures and
-    DIR/summary.json. ``limit`` solves at most that many of the members still to do; ``client`` reuses a dask
-    client."""
+    """Run (or resume) an ensemble and write DIR/ensemble.json, DIR/members/*.json, DIR/tables, DIR/figures,
+    DIR/summary.json and DIR/outputs.json. ``limit`` solves at most that many of the members still to do; ``client``
+    reuses a dask client; ``scheduler`` (tcp://host:port) must answer within ``connect_timeout`` seconds. Nothing is
+    written before the executor is ready (see the module's description)."""
     started = time.perf_counter()
+    if scheduler is not None:
+        scheduler = parse_scheduler_address(scheduler).address
+    connect_timeout = parse_connect_timeout(connect_timeout)
     spec = source if isinstance(source, EnsembleSpec) else load_ensemble(source)
     out = Path(out) if out is not None else Path("results") / spec.name
+    check_ensemble_folder(out)
     members, hashes, tasks = plan_members(spec)
-    write_design(spec, members, hashes, out)
-    store = MemberStore(out)
+    store = MemberStore(out)  # reading only, until the executor is ready
     run = EnsembleRun(spec=spec, out=out, members=members, hashes=hashes, unique=len(tasks))
 
     def pending() -> list[MemberTask]:
@@ -296,14 +333,20 @@ def run_ensemble(
         provenance=dict(base_loaded.provenance),
         files=tuple(base_loaded.files),
         warm_start=warm,
+        ensemble_file=str(spec.path),
+        input_paths={label: item.path for label, item in spec.file.inputs.items()},
     )
     if serial or not todo:
         executor = _Serial()
     else:
         count = workers or min(os.cpu_count() or 1, len(todo))
-        executor = _Dask(max(1, count), scheduler, client)
-    with executor:
+        executor = _Dask(max(1, count), scheduler, client, connect_timeout)
+    with executor:  # the cluster is up, or the scheduler answered: now DIR may be written
         run.mode, run.workers = executor.mode, executor.workers
+        write_design(spec, members, hashes, out)
+        mark_ensemble_folder(out)
+        remove_leftovers(out)
+        store.remove_leftovers()
         basis = None
         if warm and todo:
             basis = store.load_basis(spec.base_hash)

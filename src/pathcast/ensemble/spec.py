@@ -21,7 +21,10 @@ Example (paths are relative to the ensemble file)::
         values: [20, 25, 30]
 
 Validation is strict (unknown fields, wrong types and paths that do not exist in the merged base scenario are
-errors) and every error is one located sentence (:func:`pathcast.scenario.loader.located_error`).
+errors) and every error is one located sentence (:func:`pathcast.scenario.loader.located_error`). The file is read
+with the loader's YAML reader (:func:`pathcast.scenario.loader.read_yaml_document`), so its rules for YAML hold here
+too. Numbers must be finite and plausible, and every value an input can take must be one its scenario field accepts
+(:mod:`pathcast.ensemble.validity`: the rules, and why a value outside the range fails the whole run).
 """
 
 from __future__ import annotations
@@ -60,6 +63,8 @@ __all__ = [
     "load_ensemble",
     "parse_path",
     "resolve_path",
+    "looks_like_ensemble",
+    "ensemble_facts_if_ensemble",
     "DESIGNS",
     "DISTRIBUTIONS",
     "MAX_MEMBERS",
@@ -75,7 +80,7 @@ Level = (
 
 
 class _Strict(BaseModel):
-    model_config = ConfigDict(extra="forbid", frozen=True, populate_by_name=True)
+    model_config = ConfigDict(extra="forbid", frozen=True, populate_by_name=True, allow_inf_nan=False)
 
 
 class _Input(_Strict):
@@ -310,14 +315,57 @@ def scalable(value: Any) -> bool:
 
 
 # ------------------------------------------------------------------------------------------------- reading
+def looks_like_ensemble(data: Any) -> bool:
+    """Does a parsed YAML document look like an ensemble file (rather than a scenario)? A mapping with 'inputs' or
+    'design' and without a scenario's 'metadata'."""
+    return isinstance(data, dict) and "metadata" not in data and ("inputs" in data or "design" in data)
+
+
+def ensemble_facts_if_ensemble(path: str | Path) -> dict | None:
+    """For ``pathcast check``: None when ``path`` is not an ensemble file (or cannot be read: the scenario reader
+    says why); else validate it (:func:`load_ensemble`, ScenarioError when invalid) and return its facts, with the
+    one-sentence outcome under 'sentence'."""
+    try:
+        data = read_yaml_document(Path(path), "scenario")
+    except ScenarioError:
+        return None
+    if not looks_like_ensemble(data):
+        return None
+    spec = load_ensemble(path)
+    from .sampling import member_count
+
+    count = member_count(spec)
+    facts = {
+        "file": str(spec.path),
+        "valid": True,
+        "kind": "ensemble",
+        "ensemble": spec.name,
+        "base": str(spec.base_path),
+        "design": spec.file.design,
+        "members": count,
+        "inputs": list(spec.file.inputs),
+        "base_hash": spec.base_hash,
+        "command": f"pathcast ensemble {path}",
+    }
+    facts["sentence"] = (
+        f"{spec.path}: valid ensemble file {spec.name!r} ({spec.file.design}, {count} members, "
+        f"{len(spec.file.inputs)} input{'s' if len(spec.file.inputs) != 1 else ''}) around the base scenario "
+        f"{spec.base_path.name}; 'pathcast ensemble {path}' runs it."
+    )
+    return facts
+
+
 def load_ensemble(path: str | Path) -> EnsembleSpec:
     """Read and validate an ensemble file and its base scenario; raise ScenarioError with a located sentence."""
+    from .validity import check_numbers, check_ranges
+
     path = Path(path)
     data = read_yaml_document(path, "ensemble")
     if not isinstance(data, dict):
         raise located_error(
             path, "(top level)", type(data).__name__, "a mapping with name, base, design and inputs"
         )
+    check_numbers(data, path)
     try:
         spec = EnsembleFile.model_validate(data)
     except ValidationError as error:
@@ -399,6 +447,7 @@ def load_ensemble(path: str | Path) -> EnsembleSpec:
         raise located_error(
             path, "inputs", f"{count} members", f"a design of at most {MAX_MEMBERS:,} members"
         )
+    check_ranges(loaded)
     return loaded
 
 

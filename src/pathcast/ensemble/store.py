@@ -1,18 +1,62 @@
 """Member results on disk: DIR/members/<sha256 of the member's fully resolved scenario>.json, each written atomically
 (temporary file in the same folder, then ``os.replace``) the moment the member finishes, so an interrupted run leaves
-only whole files and a re-run skips what is done."""
+only whole files and a re-run skips what is done.
+
+Temporary files and folders are named ``.<name>.tmp-<process id>-<random>`` (:func:`temporary_name`), so that
+:func:`remove_leftovers` can delete, at the start of the next write to the same folder, what a killed process left
+behind -- and only that: an entry whose process still runs is left alone."""
 
 from __future__ import annotations
 
 import json
 import os
+import re
+import shutil
 import tempfile
 from pathlib import Path
 from typing import Any
 
 import numpy as np
 
-__all__ = ["MemberStore", "write_json_atomic"]
+__all__ = ["MemberStore", "write_json_atomic", "write_atomic", "temporary_prefix", "remove_leftovers"]
+
+_TEMPORARY = re.compile(r"^\.(?P<name>.+)\.tmp-(?P<pid>\d+)-[A-Za-z0-9_]+$")
+
+
+def temporary_prefix(name: str) -> str:
+    """The start of a temporary entry's name for ``name`` (``tempfile`` adds the random end)."""
+    return f".{name}.tmp-{os.getpid()}-"
+
+
+def _alive(pid: int) -> bool:
+    if pid == os.getpid():
+        return True
+    try:
+        os.kill(pid, 0)
+    except ProcessLookupError:
+        return False
+    except (PermissionError, OSError):  # another user's process, or a platform that cannot tell: keep it
+        return True
+    return True
+
+
+def remove_leftovers(folder: Path) -> list[Path]:
+    """Delete the temporary files and folders in ``folder`` that a process no longer running left behind; return
+    what was removed."""
+    folder = Path(folder)
+    removed: list[Path] = []
+    if not folder.is_dir():
+        return removed
+    for entry in folder.iterdir():
+        match = _TEMPORARY.match(entry.name)
+        if match is None or _alive(int(match["pid"])):
+            continue
+        if entry.is_dir() and not entry.is_symlink():
+            shutil.rmtree(entry, ignore_errors=True)
+        else:
+            entry.unlink(missing_ok=True)
+        removed.append(entry)
+    return removed
 
 
 def _default(value: Any) -> Any:
@@ -23,12 +67,12 @@ def _default(value: Any) -> Any:
     return str(value)
 
 
-def write_atomic(path: Path, write, suffix: str = ".tmp") -> Path:
+def write_atomic(path: Path, write) -> Path:
     """Call ``write(temporary_path)`` for a temporary file beside ``path``, then ``os.replace`` it into place (atomic
     on POSIX); the temporary file is removed on failure."""
     path = Path(path)
     path.parent.mkdir(parents=True, exist_ok=True)
-    handle, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=suffix, dir=path.parent)
+    handle, tmp = tempfile.mkstemp(prefix=temporary_prefix(path.name), dir=path.parent)
     os.close(handle)
     try:
         write(tmp)
@@ -53,8 +97,14 @@ def write_json_atomic(path: Path, data: Any) -> Path:
 
 
 class MemberStore:
+    """DIR/members/<hash>.json and DIR/basis/<hash>.npz. Reading never writes; :meth:`remove_leftovers` clears what
+    interrupted writes left (called by the runner once it is about to write)."""
+
     def __init__(self, folder: Path):
         self.folder = Path(folder) / "members"
+
+    def remove_leftovers(self) -> list[Path]:
+        return remove_leftovers(self.folder) + remove_leftovers(self.folder.parent / "basis")
 
     def path(self, digest: str) -> Path:
         return self.folder / f"{digest}.json"
@@ -84,7 +134,7 @@ class MemberStore:
     def save_basis(self, digest: str, basis: tuple[np.ndarray, np.ndarray]) -> Path:
         target = Path(self.folder).parent / "basis" / f"{digest}.npz"
         target.parent.mkdir(parents=True, exist_ok=True)
-        handle, tmp = tempfile.mkstemp(prefix=f".{target.name}.", suffix=".tmp", dir=target.parent)
+        handle, tmp = tempfile.mkstemp(prefix=temporary_prefix(target.name), dir=target.parent)
         try:
             with os.fdopen(handle, "wb") as out:
                 np.savez(out, col_status=basis[0], row_status=basis[1])

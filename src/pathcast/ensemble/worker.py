@@ -19,13 +19,13 @@ from __future__ import annotations
 import copy
 import math
 import time
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 from typing import Any
 
 import highspy
 import numpy as np
 
-from ..errors import InfeasibleError, PathcastError, SolverError
+from ..errors import InfeasibleError, PathcastError, ScenarioError, SolverError
 from ..model.build import build_linear_program
 from ..model.pyomo_model import to_pyomo
 from ..pipeline import solver_options_from
@@ -34,6 +34,7 @@ from ..scenario.inputs import prepare_inputs
 from ..scenario.loader import load_scenario_mapping
 from ..solve import Solution, SolverOptions, _status_name, handoff, highs_options_for, new_highs
 from .members import Override, apply_overrides
+from .validity import member_error
 
 __all__ = [
     "SharedContext",
@@ -60,6 +61,8 @@ class SharedContext:
     files: tuple
     warm_start: bool
     basis: tuple[np.ndarray, np.ndarray] | None = None  # HiGHS column and row statuses of the base's optimum
+    ensemble_file: str = ""  # for the sentence of a member that fails validation
+    input_paths: dict[str, str] = field(default_factory=dict)  # input label -> dotted field path
 
 
 @dataclass(frozen=True)
@@ -188,9 +191,14 @@ def _solve(context: SharedContext, task: MemberTask, *, warm_start: bool, keep_b
 
     try:
         raw = apply_overrides(copy.deepcopy(context.base_raw), task.overrides)
-        loaded = load_scenario_mapping(
-            raw, context.base_path, provenance=context.provenance, files=context.files
-        )
+        try:
+            loaded = load_scenario_mapping(
+                raw, context.base_path, provenance=context.provenance, files=context.files
+            )
+        except ScenarioError as error:
+            if not task.samples or not context.ensemble_file:
+                raise
+            raise member_error(context.ensemble_file, context.input_paths, task.samples, error) from None
         lap("validate_s")
         inputs = prepare_inputs(loaded.scenario)
         lap("inputs_s")
