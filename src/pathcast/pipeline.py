@@ -13,14 +13,16 @@ from pathlib import Path
 
 import numpy as np
 
-from .errors import InfeasibleError, SolverError
+from .errors import InfeasibleError, ScenarioError, SolverError
 from .model.build import PathwayModel, build_linear_program
 from .model.pyomo_model import to_pyomo
 from .results.extract import extract_tables, headline_figures
 from .results.run_result import RunResult
 from .scenario.inputs import ModelInputs, prepare_inputs
 from .scenario.loader import LoadedScenario, load_scenario
-from .solve import Solution, SolverOptions, solve_highs
+from .scenario.plausibility import check_inputs
+from .scenario.solver_options import SETTING_OPTIONS, check_solver_settings
+from .solve import Solution, SolverOptions, find_conflict, solve_highs
 
 __all__ = ["run_scenario", "solve_inputs", "StageTimes", "Run", "solver_options_from", "package_versions"]
 
@@ -110,9 +112,15 @@ def solve_inputs(
     metadata: dict | None = None,
     require_optimal: bool = True,
 ) -> Run:
-    """Build and solve the model of ``inputs``; raise InfeasibleError or SolverError unless it solves to optimality."""
+    """Build and solve the model of ``inputs``; raise InfeasibleError or SolverError unless it solves to optimality.
+
+    ``inputs`` are first checked to be finite and plausible (:func:`~pathcast.scenario.plausibility.check_inputs`,
+    ScenarioError). An infeasible model raises InfeasibleError naming the scenario limits that conflict (HiGHS's
+    irreducible infeasible subsystem, :mod:`pathcast.infeasibility`); an unbounded one (a cost that falls without
+    limit) raises ScenarioError naming what lowers the cost."""
     say = progress or (lambda _message: None)
     times = times or StageTimes()
+    check_inputs(inputs)
     started = time.perf_counter()
     say("building the linear program")
     model = build_linear_program(inputs)
@@ -131,11 +139,16 @@ def solve_inputs(
     times.solve_s = solution.solve_s
     if solution.status != "optimal" and require_optimal:
         if solution.status in ("infeasible", "unbounded_or_infeasible"):
-            raise InfeasibleError(
-                f"scenario {inputs.name!r}: HiGHS reports the model {solution.status.replace('_', ' ')}: the carbon "
-                "budget, caps, clean-electricity share, minimum builds and phase-outs cannot all be met together.",
-                diagnosis={"status": solution.status},
+            from .infeasibility import explain_no_optimum
+
+            say("asking HiGHS which limits conflict")
+            where = source or f"scenario {inputs.name!r}"
+            message, diagnosis, infeasible = explain_no_optimum(
+                model, find_conflict(solution), solution.status, where
             )
+            if infeasible:
+                raise InfeasibleError(message, diagnosis=diagnosis)
+            raise ScenarioError(message, file=source or None)
         raise SolverError(
             f"scenario {inputs.name!r}: HiGHS stopped with status {solution.status!r} after "
             f"{solution.solve_s:.1f} s; try another solver method (--method) or a longer time limit."
@@ -204,7 +217,14 @@ def run_scenario(
     else:
         say(f"reading {scenario}")
         loaded = load_scenario(scenario)
+    check_solver_settings(loaded.scenario.solver.model_dump(), loaded.file_of)
+    overrides = {
+        key: value for key, value in (solver or {}).items() if key in SETTING_OPTIONS and value is not None
+    }
+    if overrides:
+        check_solver_settings(overrides, lambda _path: "command line", prefix=())
     inputs = prepare_inputs(loaded.scenario)
+    check_inputs(inputs, loaded)
     if inputs_hook is not None:
         inputs = inputs_hook(inputs)
     times.load_s = time.perf_counter() - started

@@ -18,9 +18,25 @@ from pyomo.repn.plugins.standard_form import LinearStandardFormCompiler
 
 from .errors import SolverError
 from .model.pyomo_model import PyomoHandles
+from .scenario.solver_options import highs_value, quiet_highs
 from .solver_methods import METHODS
 
-__all__ = ["SolverOptions", "Solution", "handoff", "solve_highs", "highs_options_for", "new_highs", "METHODS"]
+__all__ = [
+    "SolverOptions",
+    "Solution",
+    "Conflict",
+    "handoff",
+    "solve_highs",
+    "highs_options_for",
+    "new_highs",
+    "find_conflict",
+    "METHODS",
+    "CONFLICT_TIME_LIMIT_S",
+]
+
+# time HiGHS may spend looking for an irreducible infeasible subsystem of an infeasible LP [s] (common practice, no
+# source: a diagnosis should not take longer than a national solve)
+CONFLICT_TIME_LIMIT_S = 120.0
 
 
 @dataclass(frozen=True)
@@ -158,9 +174,12 @@ def solve_highs(
         highs_opts["threads"] = int(options.threads)
     highs_opts.update(options.options)
     for key, value in highs_opts.items():
-        status = h.setOptionValue(key, value)
+        status = h.setOptionValue(key, highs_value(h, key, value))
         if status == highspy.HighsStatus.kError:
-            raise SolverError(f"HiGHS option {key!r} = {value!r} was refused; see the HiGHS option list.")
+            raise SolverError(
+                f"solver options: got {key!r} = {value!r}; expected a HiGHS option name and a value HiGHS accepts "
+                "(check them with 'pathcast check')."
+            )
     h.passModel(lp)
     handoff_s = time.perf_counter() - started
     started = time.perf_counter()
@@ -205,22 +224,72 @@ def solve_highs(
 def new_highs(log: bool = False) -> highspy.Highs:
     """A HiGHS instance; its start-up banner (printed from C++ to standard output) is kept off the screen unless
     ``log`` is asked for."""
-    if log:
-        return highspy.Highs()
-    import os
-    import sys
+    return quiet_highs(log)
 
-    sys.stdout.flush()
-    saved = os.dup(1)
-    try:
-        with open(os.devnull, "w") as null:
-            os.dup2(null.fileno(), 1)
-            h = highspy.Highs()
-            h.setOptionValue("output_flag", False)
-    finally:
-        os.dup2(saved, 1)
-        os.close(saved)
-    return h
+
+@dataclass(frozen=True)
+class Conflict:
+    """Why HiGHS found no optimum, in the LP's own row and column numbers.
+
+    kind: 'infeasible' (``rows`` and ``columns`` form an irreducible infeasible subsystem: dropping any one of them
+    makes the rest feasible), 'unbounded' (``columns`` carry a primal ray along which the cost falls without limit)
+    or 'unknown' (HiGHS gave neither). ``column_sides`` says which bound of each IIS column takes part: 'lower',
+    'upper' or 'both'."""
+
+    kind: str
+    rows: np.ndarray = field(default_factory=lambda: np.zeros(0, dtype=np.int64))
+    columns: np.ndarray = field(default_factory=lambda: np.zeros(0, dtype=np.int64))
+    column_sides: tuple[str, ...] = ()
+    ray: np.ndarray = field(default_factory=lambda: np.zeros(0))  # ray values of ``columns`` (unbounded)
+
+
+def find_conflict(solution: Solution, time_limit_s: float = CONFLICT_TIME_LIMIT_S) -> Conflict:
+    """Ask HiGHS why ``solution`` (infeasible or unbounded) has no optimum: an irreducible infeasible subsystem
+    (HiGHS's ``getIis``, first its light test, then from the LP) or, for an unbounded model, its primal ray."""
+    h = solution.highs
+    if h is None:
+        return Conflict("unknown")
+    MS = highspy.HighsModelStatus
+    row_map = solution.row_map if solution.row_map is not None else np.arange(h.getNumRow())
+    col_map = solution.col_map if solution.col_map is not None else np.arange(h.getNumCol())
+    h.setOptionValue("iis_time_limit", float(time_limit_s))
+    strategies = (int(highspy.IisStrategy.kIisStrategyLight), int(highspy.IisStrategy.kIisStrategyFromLp))
+    for strategy in strategies:
+        h.setOptionValue("iis_strategy", strategy)
+        try:
+            status, iis = h.getIis()
+        except RuntimeError:  # pragma: no cover - HiGHS raised inside its IIS search
+            break
+        if h.getModelStatus() in (MS.kUnbounded,):
+            break
+        rows = np.asarray(iis.row_index_, dtype=np.int64)
+        cols = np.asarray(iis.col_index_, dtype=np.int64)
+        if status != highspy.HighsStatus.kError and iis.valid_ and (rows.size or cols.size):
+            return Conflict(
+                "infeasible",
+                rows=row_map[rows],
+                columns=col_map[cols],
+                column_sides=tuple(_bound_side(b) for b in iis.col_bound_),
+            )
+    if h.getModelStatus() in (MS.kUnbounded, MS.kUnboundedOrInfeasible):
+        ray = h.getPrimalRay()
+        if len(ray) == 3 and ray[1]:
+            values = np.asarray(ray[2], dtype=float)
+            used = np.flatnonzero(np.abs(values) > 1e-9)
+            return Conflict("unbounded", columns=col_map[used], ray=values[used])
+        if h.getModelStatus() == MS.kUnbounded:
+            return Conflict("unbounded")
+    return Conflict("unknown")
+
+
+def _bound_side(status) -> str:
+    """'lower', 'upper' or 'both' for an IIS bound status (HiGHS's IisBoundStatus)."""
+    code = int(status)
+    if code == int(highspy.IisBoundStatus.kIisBoundStatusLower):
+        return "lower"
+    if code == int(highspy.IisBoundStatus.kIisBoundStatusUpper):
+        return "upper"
+    return "both"
 
 
 def _status_name(status) -> str:

@@ -237,7 +237,9 @@ def test_error_paths_raise_one_sentence_errors(tiny_run, tmp_path):
     conflicting = replace(inputs, reserve_margin=2.0, technologies=techs)
     with pytest.raises(
         InfeasibleError,
-        match=r"scenario 'tiny' is infeasible even without its carbon budget: its other limits",
+        match=r"scenario 'tiny' is infeasible even without its carbon budget: the reserve margin in 2025 \(firm "
+        r"capacity of at least 3\.00 x the peak demand: .*\) cannot be met within the potentials of "
+        r"gas_combined_cycle \(100 MW\), wind_onshore \(100 MW\) and battery \(100 MW\) in 2025; relax one of them",
     ):
         diagnose_budget(conflicting)
     parser = argparse.ArgumentParser()

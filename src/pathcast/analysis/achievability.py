@@ -153,11 +153,12 @@ def extra_unserved(run: Run, reference: Run) -> tuple[float, float]:
     )
 
 
-def _solve(inputs: ModelInputs, solver: dict | None) -> Run | None:
+def _solve(inputs: ModelInputs, solver: dict | None) -> Run | InfeasibleError:
+    """The run of ``inputs``, or the InfeasibleError HiGHS's verdict raised (with the conflicting limits)."""
     try:
         return solve_inputs(inputs, solver=solver)
-    except InfeasibleError:
-        return None
+    except InfeasibleError as error:
+        return error
 
 
 def minimum_budget_emissions(inputs: ModelInputs, no_budget_run: Run, *, solver: dict | None = None) -> Run:
@@ -394,8 +395,9 @@ def diagnose_budget(
     infeasible = budget_infeasible
     if budget_run is None and not infeasible:
         say("solving under the budget")
-        budget_run = _solve(inputs, solver)
-        infeasible = budget_run is None
+        solved = _solve(inputs, solver)
+        infeasible = isinstance(solved, InfeasibleError)
+        budget_run = None if infeasible else solved
     no_budget_run = None
     extra_el = extra_fuel = 0.0
     shed = budget_run is not None and (
@@ -404,13 +406,15 @@ def diagnose_budget(
     )
     if infeasible or shed or always_minimum:
         say("solving without the budget")
-        no_budget_run = _solve(without_budget(inputs), solver)
-        if no_budget_run is None:
+        solved = _solve(without_budget(inputs), solver)
+        if isinstance(solved, InfeasibleError):
+            # the other limits conflict on their own: name them (HiGHS's conflicting set), not the budget
+            reason = solved.diagnosis.get("reason", "its other limits cannot all be met together")
             raise InfeasibleError(
-                f"scenario {inputs.name!r} is infeasible even without its carbon budget: its other limits (caps, "
-                "clean-electricity share, minimum builds, phase-outs, fixed history) cannot all be met together.",
-                diagnosis={"scenario": inputs.name, "infeasible_without_budget": True},
+                f"scenario {inputs.name!r} is infeasible even without its carbon budget: {reason}.",
+                diagnosis={"scenario": inputs.name, "infeasible_without_budget": True, **solved.diagnosis},
             )
+        no_budget_run = solved
         if budget_run is not None:
             extra_el, extra_fuel = extra_unserved(budget_run, no_budget_run)
     achievable = not infeasible and extra_el <= UNSERVED_TOLERANCE and extra_fuel <= UNSERVED_TOLERANCE

@@ -22,6 +22,12 @@ def execute(args: argparse.Namespace) -> int:
         print(json.dumps(ensemble, indent=2) if args.json else ensemble["sentence"])
         return 0
     loaded = load_scenario(args.file)
+    from ..scenario.inputs import prepare_inputs
+    from ..scenario.plausibility import check_inputs
+    from ..scenario.solver_options import check_solver_settings  # imports HiGHS only for HiGHS settings
+
+    check_solver_settings(loaded.scenario.solver.model_dump(), loaded.file_of)
+    check_inputs(prepare_inputs(loaded.scenario), loaded)
     s = loaded.scenario
     t = s.technologies
     facts = {

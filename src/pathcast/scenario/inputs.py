@@ -76,6 +76,8 @@ class TechnologyInputs:
     max_build_gw: np.ndarray  # [GW/yr], inf for none
     max_total_gw: np.ndarray  # [GW], inf for none; 0 from the phase-out year
     capacity_credit: float = 0.0
+    first_build_year: int | None = None  # no new builds before this year (max_build_gw is 0 there)
+    phase_out_year: int | None = None  # nothing in service from this year on (max_total_gw is 0 there)
     # generator
     fuel: str | None = None
     efficiency: float = 1.0
@@ -103,6 +105,7 @@ class SupplyInputs:
     origin: str
     price: np.ndarray  # [million currency / PJ] = [currency/GJ]
     potential_pj: np.ndarray  # [PJ/yr], inf for none; 0 from the phase-out year
+    phase_out_year: int | None = None  # no supply from this year on
 
 
 @dataclass(frozen=True)
@@ -199,6 +202,8 @@ def _common(t, years: np.ndarray, rate: float) -> dict:
         min_build_gw=min_b,
         max_build_gw=max_b,
         max_total_gw=max_t,
+        first_build_year=t.first_build_year,
+        phase_out_year=t.phase_out_year,
     )
 
 
@@ -298,6 +303,7 @@ def prepare_inputs(s: Scenario) -> ModelInputs:
                 origin=sup.origin,
                 price=path_values(sup.price, years),
                 potential_pj=potential,
+                phase_out_year=sup.phase_out_year,
             )
         )
 

@@ -1,0 +1,435 @@
+"""Why a scenario has no optimum, in the scenario's own terms.
+
+When HiGHS finds the LP infeasible, :func:`pathcast.solve.find_conflict` asks it for an irreducible infeasible
+subsystem (IIS): a set of rows and column bounds that cannot all hold, any one of which dropped makes the rest
+feasible. Here each of its members is mapped back to the scenario limit that made it (the reserve margin of a year,
+the potential of a technology, a phase-out, a build-rate limit, the carbon budget, a yearly cap, the clean-electricity
+share, a storage duration, a supply potential, a demand) and the field that sets it. Rows and bounds that are the
+model's own physics (capacity accounting, dispatch limits, non-negativity) are left out of the sentence: they hold in
+every scenario. Where HiGHS gives no IIS, the message lists only the limits that the scenario has.
+
+An unbounded LP (the cost falls without limit) is described by the columns of HiGHS's primal ray that lower the cost:
+typically a negative price.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+from .model.build import PathwayModel
+from .scenario.inputs import ModelInputs
+from .solve import Conflict
+
+__all__ = ["ConflictMember", "conflict_members", "limits_in_scenario", "explain_no_optimum", "SHOWN_AT_MOST"]
+
+SHOWN_AT_MOST = 8  # members and field paths named in one sentence; the rest are counted
+
+_SECTION = {"generator": "generators", "storage": "storage", "converter": "converters"}
+
+
+@dataclass(frozen=True)
+class ConflictMember:
+    """One scenario limit in an infeasible subsystem.
+
+    kind: 'reserve margin', 'potential', 'phase-out', 'first build year', 'build-rate limit', 'minimum build',
+    'storage energy potential', 'supply potential', 'carbon budget', 'yearly emission cap', 'clean-electricity share',
+    'longest storage duration', 'shortest storage duration', 'fuel demand', 'electricity demand', 'fixed history',
+    'cap on unserved energy'. role: 'target' (something the scenario asks for: a margin, a share, a demand, a minimum)
+    or 'limit' (something it forbids). subject: the technology, supply or demand with its figure, e.g.
+    "wind_onshore (0 MW)"; detail: what a limit without a subject is, the same in every year (the firm capacity the
+    reserve margin asks for, as a multiple of the peak demand); figure: its figures in the first of ``years``."""
+
+    kind: str
+    role: str
+    subject: str = ""
+    detail: str = ""
+    years: tuple[int, ...] = ()
+    fields: tuple[str, ...] = ()
+    figure: str = ""  # figures of the first of ``years`` (e.g. the firm capacity the reserve margin asks for)
+
+
+_PLURAL = {
+    "potential": "potentials",
+    "phase-out": "phase-outs",
+    "first build year": "first build years",
+    "build-rate limit": "build-rate limits",
+    "minimum build": "minimum builds",
+    "storage energy potential": "storage energy potentials",
+    "supply potential": "supply potentials",
+    "fuel demand": "fuel demands",
+    "longest storage duration": "longest storage durations",
+    "shortest storage duration": "shortest storage durations",
+}
+
+
+def _span(years: tuple[int, ...]) -> str:
+    if not years:
+        return ""
+    if len(years) == 1:
+        return f" in {years[0]}"
+    if list(years) == list(range(years[0], years[-1] + 1)):
+        return f" in {years[0]}-{years[-1]}"
+    return " in " + ", ".join(str(y) for y in years)
+
+
+def _locate(lp, index: int, offsets: dict[str, int], sizes: dict[str, int]) -> tuple[str, tuple[int, ...]]:
+    for name, start in offsets.items():
+        if start <= index < start + sizes[name]:
+            block = lp.row_blocks[name] if name in lp.row_blocks else lp.variables[name]
+            return name, tuple(int(i) for i in np.unravel_index(index - start, block.shape))
+    return "", ()
+
+
+def conflict_members(model: PathwayModel, conflict: Conflict) -> tuple[ConflictMember, ...]:
+    """The scenario limits in an infeasible subsystem, grouped by kind, subject and figures (years merged)."""
+    lp, inputs, ctx = model.lp, model.inputs, model.context
+    years = [int(y) for y in inputs.years]
+    found: list[tuple[ConflictMember, int | None]] = []
+    row_offsets = lp.row_offsets()
+    row_sizes = {name: block.size for name, block in lp.row_blocks.items()}
+    for row in conflict.rows:
+        name, index = _locate(lp, int(row), row_offsets, row_sizes)
+        member = _row_member(name, index, inputs, ctx, years)
+        if member is not None:
+            found.append(member)
+    col_offsets = {name: block.offset for name, block in lp.variables.items()}
+    col_sizes = {name: block.size for name, block in lp.variables.items()}
+    lower, upper = lp.column_bounds()
+    for column, side in zip(conflict.columns, conflict.column_sides, strict=True):
+        name, index = _locate(lp, int(column), col_offsets, col_sizes)
+        for bound_side in ("lower", "upper"):
+            if side not in (bound_side, "both"):
+                continue
+            bound = float(lower[column] if bound_side == "lower" else upper[column])
+            member = _column_member(name, index, bound_side, bound, inputs, ctx, years)
+            if member is not None:
+                found.append(member)
+    merged: dict[tuple, list] = {}  # key -> [member of the earliest year, that year, all years]
+    for member, year in found:
+        key = (member.kind, member.role, member.subject, member.detail, member.fields)
+        entry = merged.setdefault(key, [member, year, set()])
+        if year is not None:
+            entry[2].add(year)
+            if entry[1] is None or year < entry[1]:
+                entry[0], entry[1] = member, year
+    return tuple(
+        ConflictMember(
+            kind=m.kind,
+            role=m.role,
+            subject=m.subject,
+            detail=m.detail,
+            years=tuple(sorted(ys)),
+            fields=m.fields,
+            figure=m.figure,
+        )
+        for m, _first, ys in merged.values()
+    )
+
+
+def _row_member(name: str, index: tuple[int, ...], inputs: ModelInputs, ctx, years: list[int]):
+    """(member, year) of an IIS row, or None for the model's own rows."""
+    if name == "reserve_margin":
+        y = index[0]
+        peak = float(inputs.peak_demand_gw[y]) * 1000.0
+        factor = 1.0 + inputs.reserve_margin
+        detail = f"firm capacity of at least {factor:.2f} x the peak demand"
+        figure = f"{factor * peak:,.0f} MW for a peak of {peak:,.0f} MW in {years[y]}"
+        member = ConflictMember(
+            "reserve margin", "target", detail=detail, fields=("policy.reserve_margin",), figure=figure
+        )
+        return member, years[y]
+    if name == "carbon_budget":
+        first, last = inputs.budget_years
+        detail = f"{inputs.budget_mt:,.1f} MtCO2 for {first}-{last}"
+        return ConflictMember(
+            "carbon budget", "limit", detail=detail, fields=("policy.carbon_budget.total_mt",)
+        ), None
+    if name == "emission_cap":
+        year = ctx.cap_years[index[0]]
+        detail = f"{inputs.emission_caps_mt[year]:,.1f} MtCO2"
+        return ConflictMember(
+            "yearly emission cap", "limit", detail=detail, fields=(f"policy.emission_caps_mt.{year}",)
+        ), int(year)
+    if name == "clean_electricity_share":
+        active = np.flatnonzero(~np.isnan(inputs.clean_share))
+        y = int(active[index[0]])
+        detail = f"{100 * inputs.clean_share[y]:.0f} % of generation"
+        return ConflictMember(
+            "clean-electricity share", "target", detail=detail, fields=("policy.clean_electricity_share",)
+        ), years[y]
+    if name in ("storage_duration_max", "storage_duration_min"):
+        longest = name.endswith("max")
+        storage = [
+            t for t in ctx.storage if (np.isfinite(t.max_duration_h) if longest else t.min_duration_h > 0)
+        ]
+        t = storage[index[0]]
+        hours = t.max_duration_h if longest else t.min_duration_h
+        field_name = "max_duration_hours" if longest else "min_duration_hours"
+        return ConflictMember(
+            "longest storage duration" if longest else "shortest storage duration",
+            "limit" if longest else "target",
+            subject=f"{t.name} ({hours:,.1f} h)",
+            fields=(f"technologies.storage.{t.name}.{field_name}",),
+        ), years[index[1]]
+    if name == "fuel_demand":
+        demand = inputs.fuel_demands[index[0]]
+        value = float(demand.demand_pj[index[1]])
+        return ConflictMember(
+            "fuel demand",
+            "target",
+            subject=f"{demand.name} ({value:,.1f} PJ/yr)",
+            fields=(f"demand.fuels.{demand.name}",),
+        ), years[index[1]]
+    if name == "electricity_balance":
+        y, d, h = index
+        value = float(inputs.electricity_demand_gw[y, d, h]) * 1000.0
+        detail = f"{value:,.0f} MW on day {inputs.day_names[d]!r} at hour {h}"
+        return ConflictMember(
+            "electricity demand", "target", detail=detail, fields=("demand.electricity",)
+        ), years[y]
+    return None
+
+
+def _column_member(name, index, side, bound, inputs: ModelInputs, ctx, years):
+    """(member, year) of a bound in an IIS, or None for the model's own bounds (non-negativity, free columns)."""
+    if not np.isfinite(bound):
+        return None
+    pinned = inputs.column_bounds.get(name)
+    if pinned is not None:
+        block = ctx.lp.variables[name]
+        given = np.broadcast_to(np.asarray(pinned[0 if side == "lower" else 1], dtype=float), block.shape)
+        if not np.isnan(given[index]):
+            year = years[index[-1]] if name not in ("unserved",) else years[index[0]]
+            if name in ("unserved", "unserved_fuel"):
+                kind, detail = (
+                    "cap on unserved energy",
+                    "no more unserved energy than the pathway without the budget",
+                )
+            else:
+                kind, detail = "fixed history", "builds, capacity and emissions fixed before the start year"
+            return ConflictMember(kind, "limit", detail=detail), int(year)
+    if name in ("new", "capacity"):
+        t = ctx.capacity_techs[index[0]]
+        year = years[index[1]]
+        base = f"technologies.{_SECTION[t.kind]}.{t.name}"
+        if name == "new" and side == "lower":
+            if bound <= 0:
+                return None
+            return ConflictMember(
+                "minimum build",
+                "target",
+                subject=f"{t.name} ({bound * 1000:,.0f} MW/yr)",
+                fields=(f"{base}.min_build_mw_per_year",),
+            ), year
+        if side == "lower":
+            return None
+        if t.phase_out_year is not None and year >= t.phase_out_year and bound <= 0:
+            return ConflictMember(
+                "phase-out",
+                "limit",
+                subject=f"{t.name} (from {t.phase_out_year})",
+                fields=(f"{base}.phase_out_year",),
+            ), year
+        if name == "new":
+            if t.first_build_year is not None and year < t.first_build_year and bound <= 0:
+                return ConflictMember(
+                    "first build year",
+                    "limit",
+                    subject=f"{t.name} ({t.first_build_year})",
+                    fields=(f"{base}.first_build_year",),
+                ), year
+            return ConflictMember(
+                "build-rate limit",
+                "limit",
+                subject=f"{t.name} ({bound * 1000:,.0f} MW/yr)",
+                fields=(f"{base}.max_build_mw_per_year",),
+            ), year
+        return ConflictMember(
+            "potential",
+            "limit",
+            subject=f"{t.name} ({bound * 1000:,.0f} MW)",
+            fields=(f"{base}.max_total_mw",),
+        ), year
+    if name in ("energy_new", "energy_capacity") and side == "upper":
+        t = ctx.storage[index[0]]
+        base = f"technologies.storage.{t.name}"
+        return ConflictMember(
+            "storage energy potential",
+            "limit",
+            subject=f"{t.name} ({bound * 1000:,.0f} MWh)",
+            fields=(f"{base}.max_total_mw", f"{base}.max_duration_hours"),
+        ), years[index[1]]
+    if name == "supply" and side == "upper":
+        s = inputs.supplies[index[0]]
+        year = years[index[1]]
+        base = f"technologies.supplies.{s.name}"
+        if s.phase_out_year is not None and year >= s.phase_out_year and bound <= 0:
+            return ConflictMember(
+                "phase-out",
+                "limit",
+                subject=f"{s.name} (from {s.phase_out_year})",
+                fields=(f"{base}.phase_out_year",),
+            ), year
+        return ConflictMember(
+            "supply potential",
+            "limit",
+            subject=f"{s.name} ({bound:,.1f} PJ/yr)",
+            fields=(f"{base}.potential_pj",),
+        ), year
+    return None
+
+
+def limits_in_scenario(inputs: ModelInputs) -> list[str]:
+    """The kinds of limit a scenario has, in words (only those present), for a message where HiGHS named none."""
+    techs = inputs.technologies
+    out = []
+    if inputs.budget_mt is not None and inputs.budget_overshoot_price is None:
+        out.append("the carbon budget")
+    if inputs.emission_caps_mt:
+        out.append("the yearly emission caps")
+    if inputs.clean_share is not None and np.any(~np.isnan(inputs.clean_share)):
+        out.append("the clean-electricity share")
+    out.append("the reserve margin")
+    if any(np.any(t.min_build_gw > 0) for t in techs):
+        out.append("the minimum builds")
+    if any(np.any(np.isfinite(t.max_build_gw) & (t.max_build_gw > 0)) for t in techs):
+        out.append("the build-rate limits")
+    if any(t.first_build_year is not None for t in techs):
+        out.append("the first build years")
+    if any(np.any(np.isfinite(t.max_total_gw) & (t.max_total_gw > 0)) for t in techs) or any(
+        np.any(np.isfinite(s.potential_pj)) for s in inputs.supplies
+    ):
+        out.append("the potentials")
+    if any(t.phase_out_year is not None for t in techs) or any(
+        s.phase_out_year is not None for s in inputs.supplies
+    ):
+        out.append("the phase-outs")
+    if any(t.kind == "storage" and (t.min_duration_h > 0 or np.isfinite(t.max_duration_h)) for t in techs):
+        out.append("the storage durations")
+    if any(name not in ("unserved", "unserved_fuel") for name in inputs.column_bounds):
+        out.append("the fixed history")
+    if any(name in ("unserved", "unserved_fuel") for name in inputs.column_bounds):
+        out.append("the cap on unserved energy")
+    return out
+
+
+def _join(items: list[str]) -> str:
+    if len(items) <= 1:
+        return "".join(items)
+    return ", ".join(items[:-1]) + " and " + items[-1]
+
+
+def _describe(members: list[ConflictMember]) -> list[str]:
+    """Phrases for members, one per (kind, years, detail), subjects of one kind listed together."""
+    groups: dict[tuple, list[ConflictMember]] = {}
+    for m in members:
+        groups.setdefault((m.kind, m.years, m.detail), []).append(m)
+    phrases = []
+    for (kind, years, detail), group in groups.items():
+        subjects = [m.subject for m in group if m.subject]
+        noun = _PLURAL.get(kind, kind) if len(subjects) > 1 else kind
+        text = f"the {noun}"
+        if subjects:
+            shown = subjects[:SHOWN_AT_MOST]
+            more = [f"{len(subjects) - SHOWN_AT_MOST} more"] if len(subjects) > SHOWN_AT_MOST else []
+            text += f" of {_join(shown + more)}{_span(years)}"
+        elif kind == "reserve margin":
+            figure = group[0].figure
+            text += f"{_span(years)} ({detail}{': ' + figure if figure else ''})"
+        else:
+            text += f" of {detail}{_span(years)}" if detail else _span(years)
+        phrases.append(text)
+    return phrases
+
+
+def explain_no_optimum(
+    model: PathwayModel, conflict: Conflict, status: str, where: str
+) -> tuple[str, dict, bool]:
+    """(one-sentence message, diagnosis, infeasible) for a model HiGHS found infeasible or unbounded.
+
+    ``where`` starts the sentence (the scenario file or name). ``infeasible`` is False for an unbounded model. The
+    diagnosis has the status, the kinds of limit in the scenario, the conflicting members and, for an infeasible
+    model, ``reason``: the sentence's part after "HiGHS reports the model infeasible: " (for messages that put it in
+    their own sentence)."""
+    inputs = model.inputs
+    present = limits_in_scenario(inputs)
+    if conflict.kind == "unbounded":
+        return _explain_unbounded(model, conflict, where), {"status": "unbounded"}, False
+    members = list(conflict_members(model, conflict)) if conflict.kind == "infeasible" else []
+    diagnosis = {
+        "status": "infeasible" if conflict.kind == "infeasible" else status,
+        "limits_in_scenario": present,
+        "conflict": [
+            {
+                "kind": m.kind,
+                "role": m.role,
+                "subject": m.subject,
+                "years": list(m.years),
+                "fields": list(m.fields),
+            }
+            for m in members
+        ],
+    }
+    shown_status = "infeasible" if conflict.kind == "infeasible" else status.replace("_", " ")
+    if not members:
+        reason = f"its limits ({_join(present)}) cannot all be met together; relax one of them"
+        diagnosis["reason"] = reason
+        return f"{where}: HiGHS reports the model {shown_status}: {reason}.", diagnosis, True
+    targets = _describe([m for m in members if m.role == "target"])
+    limits = _describe([m for m in members if m.role == "limit"])
+    if targets and limits:
+        clash = f"{_join(targets)} cannot be met within {_join(limits)}"
+    else:
+        clash = f"{_join(targets or limits)} cannot all be met together"
+    fields = list(dict.fromkeys(f for m in members for f in m.fields))
+    if fields:
+        shown = ", ".join(fields[:SHOWN_AT_MOST])
+        more = f" and {len(fields) - SHOWN_AT_MOST} more" if len(fields) > SHOWN_AT_MOST else ""
+        advice = f"; relax one of them ({shown}{more})"
+    else:
+        advice = "; relax one of them"
+    diagnosis["reason"] = clash + advice
+    return f"{where}: HiGHS reports the model infeasible: {clash}{advice}.", diagnosis, True
+
+
+def _explain_unbounded(model: PathwayModel, conflict: Conflict, where: str) -> str:
+    lp, inputs, ctx = model.lp, model.inputs, model.context
+    cost = lp.cost_vector()
+    years = [int(y) for y in inputs.years]
+    offsets = {name: block.offset for name, block in lp.variables.items()}
+    sizes = {name: block.size for name, block in lp.variables.items()}
+    items: list[str] = []
+    fields: list[str] = []
+    for column, value in zip(conflict.columns, conflict.ray, strict=True):
+        if cost[column] * value >= 0:
+            continue
+        name, index = _locate(lp, int(column), offsets, sizes)
+        if name == "supply":
+            s = inputs.supplies[index[0]]
+            items.append(
+                f"supply of {s.name} (price {s.price[index[1]]:,.2f} {inputs.currency}/GJ in {years[index[1]]})"
+            )
+            fields.append(f"technologies.supplies.{s.name}.price")
+        elif name in ("new", "capacity"):
+            t = ctx.capacity_techs[index[0]]
+            items.append(f"{'builds' if name == 'new' else 'capacity'} of {t.name} in {years[index[1]]}")
+            fields.append(f"technologies.{_SECTION[t.kind]}.{t.name}")
+        elif name == "emissions":
+            items.append(f"emissions in {years[index[0]]}")
+            fields.append("policy.carbon_price")
+        else:
+            items.append(name.replace("_", " "))
+    items = list(dict.fromkeys(items))
+    fields = list(dict.fromkeys(fields))
+    if items:
+        shown = _join(
+            items[:SHOWN_AT_MOST]
+            + ([f"{len(items) - SHOWN_AT_MOST} more"] if len(items) > SHOWN_AT_MOST else [])
+        )
+        along = f"the cost falls without limit with more {shown}"
+    else:
+        along = "the cost falls without limit"
+    check = f" ({', '.join(fields)})" if fields else " (prices, costs and the carbon price)"
+    return f"{where}: HiGHS reports the model unbounded: {along}; expected prices and costs of at least 0{check}."
