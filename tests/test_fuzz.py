@@ -11,7 +11,7 @@ never a traceback; exit 2 comes with one line naming the mutated file and the fi
 the key name), or the line for damage to the file itself; and inputs that cannot be right are rejected.
 
 Reproduce one case: ``pytest "tests/test_fuzz.py::test_scenario_fuzz_fast[scenario-017]"``; the failure message
-shows the mutation. ``seed % len(MENU)`` picks the kind of mutation, ``random.Random(seed)`` the field.
+shows the mutation. ``seed % len(menu(target))`` picks the kind of mutation, ``random.Random(seed)`` the field.
 """
 
 from __future__ import annotations
@@ -25,6 +25,7 @@ import yaml
 from pathcast.cli import main
 from tests.fuzz.mutations import (
     DEMO,
+    ENSEMBLE_PATHS,
     ENTRY,
     MENU,
     SOURCES,
@@ -35,14 +36,15 @@ from tests.fuzz.mutations import (
     emit,
     guarded,
     make_case,
+    menu,
     problems,
     write_case,
 )
 
 FAST_SCENARIO = range(0, len(MENU) + 2)
-FAST_ENSEMBLE = range(1000, 1000 + len(MENU))  # seeds apart from the scenario ones: other fields
+FAST_ENSEMBLE = range(1000, 1000 + len(menu("ensemble")))  # seeds apart from the scenario ones: other fields
 SLOW_SCENARIO = range(len(MENU) + 2, len(MENU) + 252)
-SLOW_ENSEMBLE = range(1000 + len(MENU), 1100 + len(MENU))
+SLOW_ENSEMBLE = range(1000 + len(menu("ensemble")), 1100 + len(menu("ensemble")))
 
 # case ids that still fail; they are being fixed in src/ (see the fuzz report), marked xfail(strict=False)
 KNOWN_FAILURES: set[str] = {
@@ -170,6 +172,39 @@ def test_ensemble_fuzz_slow(case, tmp_path, capsys, monkeypatch):
     _run_case(case, tmp_path, capsys, monkeypatch)
 
 
+def _pointed_inputs() -> list:
+    """Every field of ENSEMBLE_PATHS under a multiplier input (gas_price) and an absolute one (solar_learning_rate)."""
+    data = yaml.safe_load((DEMO / ENTRY["ensemble"]).read_text(encoding="utf-8"))
+    cases = []
+    for label in ("gas_price", "solar_learning_rate"):
+        apply = data["inputs"][label]["as"]
+        for field_path, on_multiplier, on_absolute in ENSEMBLE_PATHS:
+            reason = on_multiplier if apply == "multiplier" else on_absolute
+            path = ("inputs", label, "path")
+            old = data["inputs"][label]["path"]
+            name = f"{label}-to-{field_path}"
+            cases.append(
+                Case(
+                    "ensemble",
+                    0,
+                    "ensemble_path",
+                    ENTRY["ensemble"],
+                    path,
+                    old,
+                    field_path,
+                    reason,
+                    label=name,
+                )
+            )
+    return [_param(case) for case in cases]
+
+
+@pytest.mark.slow
+@pytest.mark.parametrize("case", _pointed_inputs())
+def test_ensemble_inputs_pointed_at_other_fields(case, tmp_path, capsys, monkeypatch):
+    _run_case(case, tmp_path, capsys, monkeypatch)
+
+
 # ---------------------------------------------------------------------------------------------------- the harness
 
 
@@ -195,8 +230,8 @@ def test_unmutated_copies_pass_the_checks(tmp_path, capsys, monkeypatch):
 def test_the_fast_tier_covers_every_kind_of_mutation():
     for target, seeds in (("scenario", FAST_SCENARIO), ("ensemble", FAST_ENSEMBLE)):
         cases = [make_case(target, seed) for seed in seeds]
-        assert {c.entry for c in cases} == set(range(len(MENU)))
-        assert {c.kind for c in cases} == {kind for kind, _ in MENU}
+        assert {c.entry for c in cases} == set(range(len(menu(target))))
+        assert {c.kind for c in cases} == {kind for kind, _ in menu(target)}
 
 
 def test_cases_are_the_same_every_time():

@@ -2,7 +2,8 @@
 
 A case is made from a target ("scenario": scenarios/demo/budget.yaml and reference.yaml, which it extends;
 "ensemble": scenarios/demo/ensemble.yaml) and a seed. The seed picks the kind of mutation from :data:`MENU`
-(``seed % len(MENU)``, so every consecutive run of ``len(MENU)`` seeds covers every kind once) and, with
+and the ensemble's extra kinds (``seed % len(menu(target))``, so every consecutive run of that many seeds covers
+every kind once) and, with
 ``random.Random(seed)``, the field it applies to. The mutated file is written by hand (:func:`emit`, block YAML
 with known line numbers) so a key can appear twice and a file can be re-encoded as Latin-1.
 
@@ -35,6 +36,7 @@ __all__ = [
     "DEMO",
     "ENTRY",
     "MENU",
+    "menu",
     "NUMBER_VALUES",
     "STRING_VALUES",
     "Case",
@@ -134,6 +136,34 @@ MENU: tuple[tuple[str, tuple[Any, ...]], ...] = (
     ("csv_cell", CSV_NUMBER_TEXTS),
     ("latin1_csv", (None,)),
 )
+
+# ensemble only: an input pointed at another field of the base scenario (reference.yaml), with what sampling into
+# it must give: (path, reason to reject with 'as: multiplier', reason to reject with 'as: absolute')
+ENSEMBLE_PATHS: tuple[tuple[str, str, str], ...] = (
+    ("metadata.name", "a multiplier on text", "a number for the scenario name"),
+    ("technologies.generators.solar_pv.availability", "a multiplier on a profile name", ""),
+    (
+        "technologies.generators.coal_steam.existing",
+        "a multiplier on a list of mappings",
+        "a number for a list",
+    ),
+    ("metadata.illustrative", "a multiplier on a yes/no field", "a sampled number for a yes/no field"),
+    ("time.representative_days", "a multiplier on the representative days", "a number for the days"),
+    ("technologies.generators.solar_pv.capex", "", ""),
+    ("metadata.base_year", "a multiplier on a year", "a sampled fraction for a year"),
+    ("technologies.generators.nuclear.capex", "names no field", "names no field"),
+    ("policy.carbon_budget.total_mt", "names no field of reference.yaml", "names no field of reference.yaml"),
+    ("demand.electricity.growth.2025", "", ""),
+    ("technologies.generators.coal_steam.existing.0.capacity_mw", "", ""),
+    ("metadata.discount_rate", "", ""),
+)
+ENSEMBLE_MENU: tuple[tuple[str, tuple[Any, ...]], ...] = (("ensemble_path", ENSEMBLE_PATHS),)
+
+
+def menu(target: str) -> tuple[tuple[str, tuple[Any, ...]], ...]:
+    """The kinds of mutation of a target, each with its pool of values."""
+    return MENU + ENSEMBLE_MENU if target == "ensemble" else MENU
+
 
 LOCATED = re.compile(r": [^:\s][^:]*: got ")  # 'FILE: field.path: got ...'
 QUANTITY = re.compile(r"^-?[0-9][0-9_.]*(e[-+]?[0-9]+)?\s+\S+$")
@@ -276,7 +306,7 @@ class Case:
 
     @property
     def entry(self) -> int:
-        return self.seed % len(MENU)
+        return self.seed % len(menu(self.target))
 
     @property
     def emptied(self) -> bool:
@@ -294,7 +324,7 @@ class Case:
             where = f"{self.file}: line {self.path[0] + 2}, column {self.path[1]}"
         else:
             where = f"{self.file}: {dotted(self.path)}"
-        if self.kind.startswith("replace") or self.kind == "csv_cell":
+        if self.kind.startswith("replace") or self.kind in ("csv_cell", "ensemble_path"):
             what = f"{where}: {self.old!r} -> {self.new!r}"
         elif self.kind == "delete":
             what = f"{where}: key deleted"
@@ -529,7 +559,7 @@ def catalogue(target: str, folder: Path = DEMO) -> Catalogue:
 def make_case(target: str, seed: int, folder: Path = DEMO) -> Case:
     """The mutation of ``seed`` (deterministic: the menu entry by seed, the field and value by random.Random(seed))."""
     rng = random.Random(seed)
-    kind, pool = MENU[seed % len(MENU)]
+    kind, pool = menu(target)[seed % len(menu(target))]
     new = pool[0] if len(pool) == 1 else rng.choice(pool)
     found = catalogue(target, folder)
     if kind in ("replace_number", "replace_string"):
@@ -541,6 +571,14 @@ def make_case(target: str, seed: int, folder: Path = DEMO) -> Case:
         value = _value(_read(folder, name), path)
         old = "{...}" if isinstance(value, dict) else "[...]" if isinstance(value, list) else value
         return Case(target, seed, kind, name, path, old)
+    if kind == "ensemble_path":
+        data = _read(folder, "ensemble.yaml")
+        label = rng.choice(list(data["inputs"]))
+        field_path, on_multiplier, on_absolute = new
+        apply = data["inputs"][label]["as"]
+        reason = on_multiplier if apply == "multiplier" else on_absolute
+        old = data["inputs"][label]["path"]
+        return Case(target, seed, kind, "ensemble.yaml", ("inputs", label, "path"), old, field_path, reason)
     if kind == "replace_mapping":
         name, path = rng.choice(found.containers)
         old = "{...}" if isinstance(_value(_read(folder, name), path), dict) else "[...]"
@@ -601,7 +639,7 @@ def write_case(case: Case, folder: Path) -> Written:
     target = folder / case.file
     data = _read(folder, case.file)
     lines: tuple[int, ...] = ()
-    if case.kind.startswith("replace"):
+    if case.kind.startswith("replace") or case.kind == "ensemble_path":
         _parent(data, case.path)[case.path[-1]] = case.new
         target.write_text(emit(data).text, encoding="utf-8")
     elif case.kind == "delete":
@@ -768,6 +806,9 @@ def problems(case: Case, written: Written, outcome: Outcome, out: str, err: str)
             )
     elif case.kind == "whole_file":
         pass  # the file name is enough
+    elif case.kind == "ensemble_path":
+        if not names_field(first, case.path[:2]):
+            found.append(f"the message does not name the input {dotted(case.path[:2])}")
     elif case.emptied and LOCATED.search(first):
         pass  # a section emptied or removed: what it leaves missing may be reported where it is needed
     elif case.kind == "rename_key":
