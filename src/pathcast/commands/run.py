@@ -55,6 +55,7 @@ def execute(args: argparse.Namespace) -> int:
     from ..analysis.achievability import diagnose_budget, explain
     from ..pipeline import run_scenario
     from ..report.console import render_profile, render_summary
+    from ..results.folders import refuse_unsafe_target
     from ..results.writers import write_result
 
     solver = {"method": args.method, "time_limit_s": args.time_limit, "log": args.solver_log}
@@ -62,6 +63,8 @@ def execute(args: argparse.Namespace) -> int:
     captured = {}
 
     def hook(inputs):
+        # the output folder is checked before solving: a folder pathcast did not write is refused, never replaced
+        refuse_unsafe_target(args.out or Path("results") / inputs.name)
         if overshoot_price is not None:
             if inputs.budget_mt is None:
                 raise ScenarioError(
