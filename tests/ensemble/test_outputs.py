@@ -203,3 +203,13 @@ def test_the_current_folder_is_refused(data_dir, tmp_path, monkeypatch, capsys):
     assert main(["ensemble", str(data_dir / "ensemble_oat.yaml"), "--serial", "--out", ".", "--quiet"]) == 2
     assert "ensemble folder: got the current folder, one of its parents" in capsys.readouterr().err
     assert list(tmp_path.iterdir()) == []
+
+
+def test_a_folder_holding_only_ensemble_entries_is_taken(data_dir, tmp_path, written):
+    # a copied basis/ (as benchmarks/ensemble_benchmark.py prepares) and a write of ensemble.json cut short
+    out = tmp_path / "prepared"
+    shutil.copytree(written / "basis", out / "basis")
+    (out / f".ensemble.json.tmp-{dead_pid()}-abcd1234").write_text("{", encoding="utf-8")
+    run = run_ensemble(data_dir / "ensemble_oat.yaml", out, serial=True, progress=False, outputs=False)
+    assert run.reference_solves == 0  # the copied basis was used
+    assert not any(p.name.startswith(".ensemble.json.tmp-") for p in out.iterdir())

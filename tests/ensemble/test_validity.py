@@ -9,6 +9,7 @@ the plausibility bound of 1e12 is pathcast's own (common practice, no source).
 from __future__ import annotations
 
 import json
+import warnings
 
 import pytest
 
@@ -193,3 +194,20 @@ def test_check_refuses_an_invalid_ensemble_file_in_one_sentence(write_ensemble, 
     assert main(["check", str(path)]) == 2
     err = capsys.readouterr().err.strip()
     assert len(err.splitlines()) == 1 and err.startswith(f"pathcast: {path}: inputs.solar.low: got -0.5 ")
+
+
+def test_a_lognormal_so_wide_that_samples_overflow_is_refused_without_warnings(write_ensemble, capsys):
+    # sigma 1e10: exp() of the upper samples overflows to inf; one sentence, and no numpy warning before it
+    text = solar("    distribution: lognormal\n    median: 1\n    sigma: 1.0e+10\n")
+    with (
+        warnings.catch_warnings(),
+        pytest.raises(
+            ScenarioError,
+            match=r"inputs\.solar: got inf \(the largest value the design samples, member \d+\); expected a finite "
+            r"multiplier \(it scales technologies\.generators\.solar_pv\.capex\.base\); a smaller sigma, or a bounded "
+            r"distribution, keeps the samples inside\.$",
+        ),
+    ):
+        warnings.simplefilter("error")  # a RuntimeWarning would escape instead of the ScenarioError
+        load_ensemble(write_ensemble(text))
+    assert capsys.readouterr().err == ""

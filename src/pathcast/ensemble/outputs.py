@@ -26,7 +26,7 @@ out (a copy without figures) mixes nothing and is accepted; so is a folder with 
 
 tables/ and figures/ are replaced only when every file in them is one this module writes; anything else there is
 refused before a member is solved (:func:`check_output_targets`). DIR itself must be new, empty, or an ensemble folder
-(it holds ensemble.json or pathcast's marker file), and not the current folder, one of its parents, the home folder or
+(it holds ensemble.json, pathcast's marker file, or only what an ensemble folder holds), and not the current folder, one of its parents, the home folder or
 the filesystem root (:func:`check_ensemble_folder`, the rules of :mod:`pathcast.results.folders`); the runner writes
 the marker file into DIR once the executor is ready.
 """
@@ -46,7 +46,7 @@ from pathlib import Path
 import pandas as pd
 
 from ..errors import ScenarioError
-from .store import remove_leftovers, temporary_prefix, write_json_atomic
+from .store import is_temporary, remove_leftovers, temporary_prefix, write_json_atomic
 from .summary import EnsembleSummary
 
 __all__ = [
@@ -75,6 +75,8 @@ TABLE_FILES = (
 FIGURE_FILES = ("emissions_fan", "capacity_fan", "distributions", "budget_probability", "tornado")
 MANIFEST = "outputs.json"
 SET_ENTRIES = ("tables", "figures", "summary.json")
+# what an ensemble folder holds; a folder holding only these (a copied basis/, say) is taken as one
+ENSEMBLE_ENTRIES = ("ensemble.json", "members", "basis", *SET_ENTRIES, MANIFEST)
 _LEGACY_PREFIXES = (".tables.", ".figures.")  # atomic_folder's temporary and .old folders of earlier versions
 
 
@@ -184,7 +186,10 @@ def check_ensemble_folder(folder: Path | str) -> None:
     if resolved.is_dir() and not (
         (resolved / "ensemble.json").is_file() or (resolved / OWNER_MARKER).is_file()
     ):
-        others = sorted(p.name for p in resolved.iterdir())
+        known = {*ENSEMBLE_ENTRIES, OWNER_MARKER}
+        others = sorted(
+            p.name for p in resolved.iterdir() if p.name not in known and not is_temporary(p.name)
+        )
         if others:
             listed = ", ".join(repr(n) for n in others[:3]) + (" ..." if len(others) > 3 else "")
             raise ScenarioError(

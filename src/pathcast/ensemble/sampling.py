@@ -61,7 +61,10 @@ def inverse_cdf(item, u: np.ndarray) -> list:
     u = np.asarray(u, dtype=float)
     dist = frozen_distribution(item)
     if dist is not None:
-        return [float(v) for v in dist.ppf(u)]
+        with np.errstate(
+            over="ignore", under="ignore"
+        ):  # a very wide lognormal gives inf: refused by validity
+            return [float(v) for v in dist.ppf(u)]
     values, weights = _discrete(item)
     index = np.minimum(np.searchsorted(np.cumsum(weights), u, side="right"), len(values) - 1)
     return [values[i] for i in index]

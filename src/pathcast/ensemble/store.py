@@ -18,7 +18,14 @@ from typing import Any
 
 import numpy as np
 
-__all__ = ["MemberStore", "write_json_atomic", "write_atomic", "temporary_prefix", "remove_leftovers"]
+__all__ = [
+    "MemberStore",
+    "write_json_atomic",
+    "write_atomic",
+    "temporary_prefix",
+    "is_temporary",
+    "remove_leftovers",
+]
 
 _TEMPORARY = re.compile(r"^\.(?P<name>.+)\.tmp-(?P<pid>\d+)-[A-Za-z0-9_]+$")
 
@@ -26,6 +33,11 @@ _TEMPORARY = re.compile(r"^\.(?P<name>.+)\.tmp-(?P<pid>\d+)-[A-Za-z0-9_]+$")
 def temporary_prefix(name: str) -> str:
     """The start of a temporary entry's name for ``name`` (``tempfile`` adds the random end)."""
     return f".{name}.tmp-{os.getpid()}-"
+
+
+def is_temporary(name: str) -> bool:
+    """Is ``name`` that of a temporary file or folder of :func:`write_atomic` or the outputs' staging folder?"""
+    return _TEMPORARY.match(name) is not None
 
 
 def _alive(pid: int) -> bool:

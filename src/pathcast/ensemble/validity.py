@@ -194,9 +194,9 @@ def check_ranges(spec, members: list | None = None) -> None:
             hint = ""
             if where == f"inputs.{label}":  # a sampled extreme of an unbounded distribution
                 hint = (
-                    " (truncate the normal with 'low' and 'high')"
+                    "; truncate the normal with 'low' and 'high'"
                     if getattr(item, "distribution", "") == "normal"
-                    else " (a smaller sigma, or a bounded distribution, keeps the samples inside)"
+                    else "; a smaller sigma, or a bounded distribution, keeps the samples inside"
                 )
 
             def refuse(
@@ -210,6 +210,8 @@ def check_ranges(spec, members: list | None = None) -> None:
 
             if item.apply == "multiplier":
                 number = leading_number(value)
+                if number is not None and not math.isfinite(number) and not math.isnan(number) and number > 0:
+                    raise refuse(f"a finite multiplier (it scales {field})")
                 if number is None or not math.isfinite(number) or number < 0:
                     raise refuse(
                         f"a multiplier of at least 0 (it scales {field}; a negative one would flip its sign: give "
