@@ -109,6 +109,18 @@ MAPPING_VALUES: tuple[Any, ...] = (5, "text", [1, 2], None, {}, [])
 # the whole text of one file replaced (the byte-order mark keeps the file valid)
 BOM = "byte-order mark + the file"
 WHOLE_FILES: tuple[str, ...] = ("", "[1, 2]\n", "just text\n", "key: [unclosed\n", "\t- tab\n", BOM)
+# a leaf written as YAML that safe_load reads as something else than a number or a string, with whether it must be
+# rejected wherever it stands
+YAML_TEXTS: tuple[tuple[str, str], ...] = (
+    ("!!python/object/apply:os.system ['true']", "a Python object tag"),
+    ("!!binary aGVsbG8=", "bytes are no scenario value"),
+    ("2025-01-01", ""),  # a date
+    ("!!set {a: null}", "a set is no scenario value"),
+    ("*nowhere", "an alias to no anchor"),
+    ("&kept 5", ""),  # an anchor on a number: the number
+    ("!!timestamp 2025-01-01 10:00:00", ""),
+    ("{a: 1, a: 2}", "a key written twice in one mapping"),
+)
 # mappings whose keys are names the user chooses (renaming one is not a misspelt field)
 USER_NAMED = {
     "scenario": {
@@ -133,6 +145,7 @@ MENU: tuple[tuple[str, tuple[Any, ...]], ...] = (
     ("replace_mapping", MAPPING_VALUES),
     ("rename_key", (None,)),
     ("whole_file", WHOLE_FILES),
+    ("yaml_text", YAML_TEXTS),
     ("csv_cell", CSV_NUMBER_TEXTS),
     ("latin1_csv", (None,)),
 )
@@ -172,8 +185,17 @@ QUANTITY = re.compile(r"^-?[0-9][0-9_.]*(e[-+]?[0-9]+)?\s+\S+$")
 # ---------------------------------------------------------------------------------------------------- writing YAML
 
 
+@dataclass(frozen=True)
+class Raw:
+    """YAML text written as it is (a tag, an alias, a date ...)."""
+
+    text: str
+
+
 def scalar_text(value: Any) -> str:
     """One YAML flow node (scalar, list or mapping) on one line, as PyYAML would read it back."""
+    if isinstance(value, Raw):
+        return value.text
     text = yaml.safe_dump(value, default_flow_style=True, allow_unicode=True, width=2**30)
     if text.endswith("\n...\n"):
         text = text[: -len("\n...\n")]
@@ -324,7 +346,7 @@ class Case:
             where = f"{self.file}: line {self.path[0] + 2}, column {self.path[1]}"
         else:
             where = f"{self.file}: {dotted(self.path)}"
-        if self.kind.startswith("replace") or self.kind in ("csv_cell", "ensemble_path"):
+        if self.kind.startswith("replace") or self.kind in ("csv_cell", "ensemble_path", "yaml_text"):
             what = f"{where}: {self.old!r} -> {self.new!r}"
         elif self.kind == "delete":
             what = f"{where}: key deleted"
@@ -579,6 +601,12 @@ def make_case(target: str, seed: int, folder: Path = DEMO) -> Case:
         reason = on_multiplier if apply == "multiplier" else on_absolute
         old = data["inputs"][label]["path"]
         return Case(target, seed, kind, "ensemble.yaml", ("inputs", label, "path"), old, field_path, reason)
+    if kind == "yaml_text":
+        text, reason = new
+        leaf = rng.choice(found.numbers + found.strings)
+        if not reason and _is_number(leaf.value) and text.startswith(("2025-", "!!timestamp")):
+            reason = "a date where a number is expected"
+        return Case(target, seed, kind, leaf.file, leaf.path, leaf.value, text, reason)
     if kind == "replace_mapping":
         name, path = rng.choice(found.containers)
         old = "{...}" if isinstance(_value(_read(folder, name), path), dict) else "[...]"
@@ -651,6 +679,11 @@ def write_case(case: Case, folder: Path) -> Written:
         parent.clear()
         parent.update(renamed)
         target.write_text(emit(data).text, encoding="utf-8")
+    elif case.kind == "yaml_text":
+        _parent(data, case.path)[case.path[-1]] = Raw(case.new)
+        emitted = emit(data)
+        target.write_text(emitted.text, encoding="utf-8")
+        lines = (emitted.line_of[case.path] + 1,)
     elif case.kind == "whole_file":
         target.write_text("\ufeff" + emit(data).text if case.new == BOM else case.new, encoding="utf-8")
     elif case.kind in ("csv_cell", "latin1_csv"):
@@ -806,6 +839,9 @@ def problems(case: Case, written: Written, outcome: Outcome, out: str, err: str)
             )
     elif case.kind == "whole_file":
         pass  # the file name is enough
+    elif case.kind == "yaml_text":
+        if not names_field(first, case.path) and not names_line(first, written.mutated, written.lines):
+            found.append(f"the message names neither {dotted(case.path)} nor line {written.lines[0]}")
     elif case.kind == "ensemble_path":
         if not names_field(first, case.path[:2]):
             found.append(f"the message does not name the input {dotted(case.path[:2])}")
