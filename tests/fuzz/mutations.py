@@ -1,17 +1,18 @@
-"""Seeded one-field mutations of the demo scenario and the demo ensemble file, and the checks of what pathcast says.
+"""Seeded one-change mutations of the demo scenario and the demo ensemble file, and the judging of what pathcast says.
 
-A case is made from a target ("scenario": scenarios/demo/budget.yaml and reference.yaml, which it extends;
-"ensemble": scenarios/demo/ensemble.yaml) and a seed. The seed picks the kind of mutation from :data:`MENU`
-and the ensemble's extra kinds (``seed % len(menu(target))``, so every consecutive run of that many seeds covers
-every kind once) and, with
-``random.Random(seed)``, the field it applies to. The mutated file is written by hand (:func:`emit`, block YAML
-with known line numbers) so a key can appear twice and a file can be re-encoded as Latin-1.
+A case is made from a target ("scenario": scenarios/demo/budget.yaml, reference.yaml which it extends, and the
+representative_days.csv it reads; "ensemble": scenarios/demo/ensemble.yaml and its base) and a seed. The seed
+picks the kind of mutation from :func:`menu` (``seed % len(menu(target))``, so every consecutive run of that many
+seeds covers every kind once) and, with ``random.Random(seed)``, the field and value. The mutated file is written
+by hand (:func:`emit`, block YAML with known line numbers) so a key can appear twice, a leaf can be raw YAML and a
+file can be re-encoded as Latin-1.
 
-:func:`problems` turns what the command did (exit code, output, an exception that escaped) into the list of broken
-promises: exit code 0 or 2, never a traceback, a rejected input named by its one-line message (the mutated field
-path, or its parent path plus the key name, and the file; for file-level damage the file and the line), and some
-mutations that must be rejected (NaN, text or a list for a number, a missing file, a name that is no commodity, a
-scenario name that would leave results/, a duplicate key, a file that is not UTF-8).
+:func:`problems` turns what a check did (:class:`Outcome`: exit code, an escaped exception, warnings; and the
+output) into the list of broken promises: exit code 0 or 2; no traceback, exception or warning; a rejected input
+named by its one-line message (the file and the field path, or its parent path plus the key name; for damage to
+the file the line); and mutations that must be rejected (:func:`_must_reject`, :func:`_out_of_range`,
+:func:`_csv_must_reject`: NaN, text or a list for a number, numbers out of plain physical range, a missing file,
+a name that is no commodity, a scenario name that would leave results/, a duplicate key, a file not in UTF-8, ...).
 """
 
 from __future__ import annotations
