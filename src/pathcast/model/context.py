@@ -9,15 +9,25 @@ import numpy as np
 from ..scenario.inputs import ModelInputs, TechnologyInputs
 from ..scenario.schema import ELECTRICITY
 from .linear_program import LinearProgram, VariableBlock
+from .names import CAPACITY
 
-__all__ = ["BuildContext"]
+__all__ = ["BuildContext", "read_only"]
 
 
 @dataclass
 class BuildContext:
+    """Shared state of one build. The families fill ``blocks`` (variable blocks by name, see
+    :mod:`pathcast.model.names`) and the index lists below; read-back functions use the same fields."""
+
     inputs: ModelInputs
     lp: LinearProgram = field(default_factory=LinearProgram)
     blocks: dict[str, VariableBlock] = field(default_factory=dict)
+    # rows that extensions added (pathcast.model.extension), in LP order
+    extension_rows: list = field(default_factory=list)
+    # set by fuels: (fuel demand position, fuel position) of every column of the delivery block, in block order
+    delivery_pairs: list[tuple[int, int]] = field(default_factory=list)
+    # set by policy: the years with a yearly emission cap, in the order of the emission_cap rows
+    cap_years: list[int] = field(default_factory=list)
 
     def __post_init__(self) -> None:
         techs = self.inputs.technologies
@@ -48,6 +58,26 @@ class BuildContext:
 
     def capacity_columns(self, techs: list[TechnologyInputs]) -> np.ndarray:
         """Columns of capacity in service [len(techs), Y] for the given technologies."""
-        capacity = self.blocks["capacity"]
+        capacity = self.blocks[CAPACITY]
         rows = np.array([self.position[t.name] for t in techs], dtype=int)
         return capacity.all()[rows] if len(rows) else np.zeros((0, self.Y), dtype=int)
+
+    def column_values(self, name: str, x: np.ndarray) -> np.ndarray:
+        """Primal values of variable block ``name``, shaped like the block (a copy), from the primal values ``x``
+        (LP column order); the unit is the block's."""
+        return x[self.blocks[name].all()]
+
+    def row_values(self, name: str, values: np.ndarray) -> np.ndarray:
+        """The entries of row block ``name``, shaped like the block, from a vector in LP row order (``row_dual``);
+        a row dual is in million currency of the price year (discounted) per unit of the row."""
+        block = self.lp.row_blocks[name]
+        start = self.lp.row_offsets()[name]
+        return values[start : start + block.size].reshape(block.shape)
+
+
+def read_only(values: np.ndarray) -> np.ndarray:
+    """A read-only view of ``values`` (which stays as it was), for the arrays of each family's frozen read-back
+    values."""
+    view = np.asarray(values).view()
+    view.flags.writeable = False
+    return view
