@@ -11,9 +11,22 @@ proportion to their available output (:func:`generation_values`).
 
 from __future__ import annotations
 
+from dataclasses import dataclass
+
 import numpy as np
 
-from .context import BuildContext
+from .context import BuildContext, read_only
+from .names import (
+    CHARGE,
+    CONVERTER_POWER,
+    CURTAILMENT,
+    CURTAILMENT_LIMIT,
+    DISCHARGE,
+    ELECTRICITY_BALANCE,
+    GENERATION,
+    GENERATION_LIMIT,
+    UNSERVED,
+)
 
 __all__ = [
     "add_dispatch",
@@ -21,6 +34,8 @@ __all__ = [
     "add_pooled_output",
     "available_output",
     "generation_values",
+    "read_dispatch",
+    "DispatchValues",
 ]
 
 
@@ -28,15 +43,13 @@ def add_dispatch(ctx: BuildContext) -> None:
     lp, Y, D, H = ctx.lp, ctx.Y, ctx.D, ctx.H
     gens = ctx.dispatched_generators
     G = len(gens)
-    generation = lp.add_variables("generation", ("technology", "year", "day", "hour"), (G, Y, D, H), "GW")
-    ctx.blocks["generation"] = generation
-    unserved = lp.add_variables("unserved", ("year", "day", "hour"), (Y, D, H), "GW")
-    ctx.blocks["unserved"] = unserved
+    generation = lp.add_variables(GENERATION, ("technology", "year", "day", "hour"), (G, Y, D, H), "GW")
+    ctx.blocks[GENERATION] = generation
+    unserved = lp.add_variables(UNSERVED, ("year", "day", "hour"), (Y, D, H), "GW")
+    ctx.blocks[UNSERVED] = unserved
 
     if G:
-        limit = lp.add_rows(
-            "generation_limit", ("technology", "year", "day", "hour"), (G, Y, D, H), "<=", "GW"
-        )
+        limit = lp.add_rows(GENERATION_LIMIT, ("technology", "year", "day", "hour"), (G, Y, D, H), "<=", "GW")
         rows = limit.local()
         limit.add(rows, generation.all(), 1.0)
         availability = np.stack([t.availability for t in gens])  # [G, D, H]
@@ -52,9 +65,9 @@ def add_dispatch(ctx: BuildContext) -> None:
 
     if ctx.pooled_generators:
         # curtailment [GW] <= sum over pooled generators of availability x capacity, every hour
-        curtailment = lp.add_variables("curtailment", ("year", "day", "hour"), (Y, D, H), "GW")
-        ctx.blocks["curtailment"] = curtailment
-        limit = lp.add_rows("curtailment_limit", ("year", "day", "hour"), (Y, D, H), "<=", "GW")
+        curtailment = lp.add_variables(CURTAILMENT, ("year", "day", "hour"), (Y, D, H), "GW")
+        ctx.blocks[CURTAILMENT] = curtailment
+        limit = lp.add_rows(CURTAILMENT_LIMIT, ("year", "day", "hour"), (Y, D, H), "<=", "GW")
         rows = limit.local()
         limit.add(rows, curtailment.all(), 1.0)
         add_pooled_output(ctx, limit, rows, -1.0)
@@ -81,7 +94,7 @@ def add_electricity_balance(ctx: BuildContext) -> None:
     lp = ctx.lp
     shape = (ctx.Y, ctx.D, ctx.H)
     balance = lp.add_rows(
-        "electricity_balance",
+        ELECTRICITY_BALANCE,
         ("year", "day", "hour"),
         shape,
         "==",
@@ -89,20 +102,20 @@ def add_electricity_balance(ctx: BuildContext) -> None:
         rhs=ctx.inputs.electricity_demand_gw,
     )
     rows = balance.local()
-    generation = ctx.blocks["generation"].all()
+    generation = ctx.blocks[GENERATION].all()
     for g in range(generation.shape[0]):
         balance.add(rows, generation[g], 1.0)
     if ctx.pooled_generators:
         add_pooled_output(ctx, balance, rows, 1.0)
-        balance.add(rows, ctx.blocks["curtailment"].all(), -1.0)
-    balance.add(rows, ctx.blocks["unserved"].all(), 1.0)
-    if "discharge" in ctx.blocks:
-        for k in range(ctx.blocks["discharge"].shape[0]):
-            balance.add(rows, ctx.blocks["discharge"].all()[k], 1.0)
-            balance.add(rows, ctx.blocks["charge"].all()[k], -1.0)
-    if "converter_power" in ctx.blocks:
-        for c in range(ctx.blocks["converter_power"].shape[0]):
-            balance.add(rows, ctx.blocks["converter_power"].all()[c], -1.0)
+        balance.add(rows, ctx.blocks[CURTAILMENT].all(), -1.0)
+    balance.add(rows, ctx.blocks[UNSERVED].all(), 1.0)
+    if DISCHARGE in ctx.blocks:
+        for k in range(ctx.blocks[DISCHARGE].shape[0]):
+            balance.add(rows, ctx.blocks[DISCHARGE].all()[k], 1.0)
+            balance.add(rows, ctx.blocks[CHARGE].all()[k], -1.0)
+    if CONVERTER_POWER in ctx.blocks:
+        for c in range(ctx.blocks[CONVERTER_POWER].shape[0]):
+            balance.add(rows, ctx.blocks[CONVERTER_POWER].all()[c], -1.0)
 
 
 def available_output(ctx: BuildContext, techs: list, x: np.ndarray) -> np.ndarray:
@@ -121,14 +134,70 @@ def generation_values(ctx: BuildContext, x: np.ndarray) -> np.ndarray:
     proportion to available output."""
     out = np.zeros((len(ctx.generators), ctx.Y, ctx.D, ctx.H))
     position = {t.name: g for g, t in enumerate(ctx.generators)}
-    dispatched = x[ctx.blocks["generation"].all()]
+    dispatched = ctx.column_values(GENERATION, x)
     for i, t in enumerate(ctx.dispatched_generators):
         out[position[t.name]] = dispatched[i]
     if ctx.pooled_generators:
         potential = available_output(ctx, ctx.pooled_generators, x)
         total = potential.sum(axis=0)
-        curtailed = np.clip(x[ctx.blocks["curtailment"].all()], 0.0, None)
+        curtailed = np.clip(ctx.column_values(CURTAILMENT, x), 0.0, None)
         kept = np.where(total > 0, 1.0 - np.minimum(curtailed, total) / np.where(total > 0, total, 1.0), 0.0)
         for p, t in enumerate(ctx.pooled_generators):
             out[position[t.name]] = np.clip(potential[p] * kept, 0.0, None)
     return out
+
+
+@dataclass(frozen=True)
+class DispatchValues:
+    """The dispatch family's solution: hourly output of every generator, unserved electricity, curtailment, the
+    costs the family adds to the objective (undiscounted) and the hourly electricity price from the balance duals."""
+
+    generators: tuple[str, ...]  # every generator, in scenario order (rows of the [G, ...] arrays)
+    years: tuple[int, ...]
+    days: tuple[str, ...]  # representative days
+    hours: tuple[int, ...]  # hours of a representative day, 0..H-1
+    hour_weight: np.ndarray  # [Y, D, H] hours of the year each representative hour stands for [h]
+    generation_gw: np.ndarray  # [G, Y, D, H] output [GW] (pooled generators' curtailment shared out)
+    curtailed_twh: (
+        np.ndarray
+    )  # [G, Y] available less used output of generators with no fuel or running cost [TWh]
+    unserved_gw: np.ndarray  # [Y, D, H] electricity demand not served [GW]
+    variable_om_million: np.ndarray  # [G, Y] variable O&M of each generator [million/yr]
+    unserved_cost_million: np.ndarray  # [Y] unserved electricity at the value of lost load [million/yr]
+    electricity_price_per_mwh: (
+        np.ndarray
+    )  # [Y, D, H] undiscounted dual of the electricity balance [currency/MWh]
+
+
+def read_dispatch(ctx: BuildContext, x: np.ndarray, row_dual: np.ndarray) -> DispatchValues:
+    """The dispatch family's values from the primal values ``x`` (LP column order) and the row duals ``row_dual``
+    (LP row order)."""
+    inputs, hw = ctx.inputs, ctx.hour_weight
+    generation = generation_values(ctx, x)  # [G, Y, D, H] GW
+    curtailed = np.zeros((len(ctx.generators), ctx.Y))
+    free = [(g, t) for g, t in enumerate(ctx.generators) if t.fuel is None and t.variable_om == 0.0]
+    if free:
+        available = available_output(ctx, [t for _, t in free], x)  # [F, Y, D, H] GW
+        for i, (g, _t) in enumerate(free):
+            curtailed[g] = np.maximum(((available[i] - generation[g]) * hw).sum(axis=(1, 2)) / 1000.0, 0.0)
+    variable_om = np.zeros((len(ctx.generators), ctx.Y))
+    for g, t in enumerate(ctx.generators):
+        variable_om[g] = t.variable_om * (generation[g] * hw).sum(axis=(1, 2))
+    unserved = ctx.column_values(UNSERVED, x)
+    balance = ctx.row_values(
+        ELECTRICITY_BALANCE, row_dual
+    )  # [million / GW per representative hour], discounted
+    price = balance * 1000.0 / (inputs.day_weights[None, :, None] * ctx.discount[:, None, None])
+    return DispatchValues(
+        generators=tuple(t.name for t in ctx.generators),
+        years=tuple(int(year) for year in inputs.years),
+        days=tuple(inputs.day_names),
+        hours=tuple(range(ctx.H)),
+        hour_weight=read_only(hw),
+        generation_gw=read_only(generation),
+        curtailed_twh=read_only(curtailed),
+        unserved_gw=read_only(unserved),
+        variable_om_million=read_only(variable_om),
+        unserved_cost_million=read_only(inputs.value_of_lost_load * (unserved * hw).sum(axis=(1, 2))),
+        electricity_price_per_mwh=read_only(price),
+    )
