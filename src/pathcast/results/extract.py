@@ -1,17 +1,44 @@
-"""Read a solved LP back into tidy tables, block by block with numpy (no value-by-value reads)."""
+"""Tidy tables and headline figures of a solved run, from the values each constraint family read back
+(:mod:`pathcast.model.solution_values`): one function per group of tables, whole arrays at a time with numpy.
+
+This module never sees LP columns, rows or block names; the families own how their blocks map to values.
+"""
 
 from __future__ import annotations
+
+from typing import TYPE_CHECKING
 
 import numpy as np
 import pandas as pd
 
-from ..model.build import PathwayModel
-from ..model.capacity import _alive_pairs
-from ..model.dispatch import available_output, generation_values
-from ..scenario.inputs import PJ_PER_GWH
-from ..solve import Solution
+from ..model.solution_values import SolutionValues, read_solution
 
-__all__ = ["extract_tables", "headline_figures"]
+if TYPE_CHECKING:
+    from ..model.build import PathwayModel
+    from ..solve import Solution
+
+__all__ = [
+    "extract_tables",
+    "headline_figures",
+    "tables_from_values",
+    "headline_from_values",
+    "capacity_tables",
+    "electricity_tables",
+    "fuel_tables",
+    "emissions_tables",
+    "cost_table",
+    "price_tables",
+    "lcoe_table",
+]
+
+ELECTRICITY_COLUMNS = ["technology", "kind", "year", "generation_twh", "consumption_twh"]
+STORAGE_ENERGY_COLUMNS = ["technology", "year", "energy_capacity_mwh", "new_mwh"]
+FUEL_FLOW_COLUMNS = ["year", "commodity", "technology", "role", "energy_pj"]
+FUEL_DEMAND_COLUMNS = ["year", "demand", "commodity", "delivered_pj", "unserved_pj"]
+FUEL_SUPPLY_COLUMNS = ["year", "supply", "commodity", "origin", "supply_pj", "price_per_gj"]
+EMISSIONS_COLUMNS = ["year", "source", "sector", "emissions_mtco2"]
+FUEL_PRICE_COLUMNS = ["year", "commodity", "price_per_gj"]
+LCOE_COLUMNS = ["technology", "year", "lcoe_per_mwh", "capacity_factor"]
 
 
 def _frame(values: np.ndarray, dims: dict[str, list], name: str) -> pd.DataFrame:
@@ -20,104 +47,86 @@ def _frame(values: np.ndarray, dims: dict[str, list], name: str) -> pd.DataFrame
     return pd.DataFrame({name: np.asarray(values, dtype=float).ravel()}, index=index).reset_index()
 
 
-def extract_tables(model: PathwayModel, solution: Solution) -> dict[str, pd.DataFrame]:
-    ctx, inputs, lp = model.context, model.inputs, model.lp
-    x = solution.x
-    blocks = ctx.blocks
-    years = inputs.years.tolist()
-    days = list(inputs.day_names)
-    hours = list(range(ctx.H))
-    df = inputs.discount_factor
-    w = inputs.day_weights
-    hw = ctx.hour_weight
-    value = lambda name: x[blocks[name].all()]  # noqa: E731
-    techs = ctx.capacity_techs
-    names = [t.name for t in techs]
-    kinds = {t.name: t.kind for t in techs}
+def _concat(frames: list[pd.DataFrame], columns: list[str]) -> pd.DataFrame:
+    """The frames one after the other, or an empty frame with ``columns`` when there are none."""
+    return pd.concat(frames, ignore_index=True) if frames else pd.DataFrame(columns=columns)
 
-    # --- capacity ------------------------------------------------------------------------------------------------
-    capacity = value("capacity")  # [T, Y] GW
-    new = value("new")
-    installed = np.zeros_like(capacity)
-    for i, t in enumerate(techs):
-        y, b = _alive_pairs(ctx.Y, t.lifetime)
-        np.add.at(installed[i], y, new[i, b])
-        installed[i] += t.existing_gw
-    previous = np.empty_like(capacity)  # capacity in service the year before [GW]
-    previous[:, 0] = [t.existing_gw[0] for t in techs]
-    previous[:, 1:] = capacity[:, :-1]
-    retired = np.maximum(previous + new - capacity, 0.0)
-    cap = _frame(capacity * 1000, {"technology": names, "year": years}, "capacity_mw")
-    cap["new_mw"] = (new * 1000).ravel()
-    cap["retired_mw"] = (retired * 1000).ravel()
-    cap["early_retired_mw"] = (np.maximum(installed - capacity, 0.0) * 1000).ravel()
+
+def _energy_twh(power_gw: np.ndarray, hour_weight: np.ndarray) -> np.ndarray:
+    """Yearly energy [TWh] of an hourly power array [Y, D, H] in GW, each hour weighted by the hours it stands for."""
+    return (power_gw * hour_weight).sum(axis=(1, 2)) / 1000.0
+
+
+def _hourly_index(values: SolutionValues) -> pd.DataFrame:
+    """(year, day, hour) of every representative hour, in array order."""
+    dispatch = values.dispatch
+    return pd.MultiIndex.from_product(
+        [list(dispatch.years), list(dispatch.days), list(dispatch.hours)], names=["year", "day", "hour"]
+    ).to_frame(index=False)
+
+
+# ---------------------------------------------------------------------------------------------------- capacity
+def capacity_tables(values: SolutionValues) -> tuple[pd.DataFrame, pd.DataFrame]:
+    """``capacity`` [MW, MW/yr] of every technology by year and ``storage_energy`` [MWh] of storage."""
+    fleet = values.capacity
+    years = list(fleet.years)
+    cap = _frame(
+        fleet.capacity_gw * 1000, {"technology": list(fleet.technologies), "year": years}, "capacity_mw"
+    )
+    cap["new_mw"] = (fleet.new_gw * 1000).ravel()
+    cap["retired_mw"] = (fleet.retired_gw * 1000).ravel()
+    cap["early_retired_mw"] = (np.maximum(fleet.installed_gw - fleet.capacity_gw, 0.0) * 1000).ravel()
+    kinds = dict(zip(fleet.technologies, fleet.kinds, strict=True))
     cap.insert(1, "kind", cap["technology"].map(kinds))
 
-    storage_names = [t.name for t in ctx.storage]
-    if ctx.storage:
+    if fleet.storage_technologies:
         energy = _frame(
-            value("energy_capacity") * 1000,
-            {"technology": storage_names, "year": years},
+            fleet.energy_capacity_gwh * 1000,
+            {"technology": list(fleet.storage_technologies), "year": years},
             "energy_capacity_mwh",
         )
-        energy["new_mwh"] = (value("energy_new") * 1000).ravel()
+        energy["new_mwh"] = (fleet.energy_new_gwh * 1000).ravel()
     else:
-        energy = pd.DataFrame(columns=["technology", "year", "energy_capacity_mwh", "new_mwh"])
+        energy = pd.DataFrame(columns=STORAGE_ENERGY_COLUMNS)
+    return cap, energy
 
-    # --- electricity, yearly and hourly -----------------------------------------------------------------------
-    gen_names = [t.name for t in ctx.generators]
-    hourly_parts = []
-    yearly_rows = []
 
-    def add_flow(name: str, kind: str, power: np.ndarray, sign: float) -> None:
-        # power [Y, D, H] GW
-        hourly_parts.append((name, sign * power))
-        energy_twh = (power * hw).sum(axis=(1, 2)) / 1000.0
+# ------------------------------------------------------------------------------------------------- electricity
+def electricity_tables(values: SolutionValues, capacity: pd.DataFrame) -> tuple[pd.DataFrame, pd.DataFrame]:
+    """``electricity`` (yearly generation and consumption [TWh], capacity factor, curtailment [TWh] of every
+    generator, storage and electric converter) and ``electricity_hourly`` [MW] of every representative hour.
+    ``capacity`` is the table from :func:`capacity_tables`."""
+    dispatch, storage, fuels = values.dispatch, values.storage, values.fuels
+    years = list(dispatch.years)
+    hw = dispatch.hour_weight
+    no_energy = np.zeros(len(years))
+    hourly_parts: list[tuple[str, np.ndarray]] = []
+    yearly_rows: list[tuple[str, str, np.ndarray, np.ndarray]] = []
+
+    for g, name in enumerate(dispatch.generators):
+        hourly_parts.append((name, 1.0 * dispatch.generation_gw[g]))
+        yearly_rows.append((name, "generator", _energy_twh(dispatch.generation_gw[g], hw), no_energy))
+    for k, name in enumerate(storage.technologies):
+        hourly_parts.append((name, storage.discharge_gw[k] - storage.charge_gw[k]))
         yearly_rows.append(
-            (
-                name,
-                kind,
-                energy_twh if sign > 0 else np.zeros(ctx.Y),
-                energy_twh if sign < 0 else np.zeros(ctx.Y),
-            )
+            (name, "storage", _energy_twh(storage.discharge_gw[k], hw), _energy_twh(storage.charge_gw[k], hw))
         )
+    for c, name in enumerate(fuels.electric_converters):
+        hourly_parts.append((name, -1.0 * fuels.converter_power_gw[c]))
+        yearly_rows.append((name, "converter", no_energy, _energy_twh(fuels.converter_power_gw[c], hw)))
+    hourly_parts.append(("unserved", dispatch.unserved_gw))
+    hourly_parts.append(("final_demand", -values.inputs.electricity_demand_gw))
 
-    generation = generation_values(ctx, x)  # [G, Y, D, H] GW, pooled generators' curtailment shared out
-    for g, name in enumerate(gen_names):
-        add_flow(name, "generator", generation[g], 1.0)
-    if ctx.storage:
-        charge, discharge = value("charge"), value("discharge")
-        for k, name in enumerate(storage_names):
-            hourly_parts.append((name, discharge[k] - charge[k]))
-            yearly_rows.append(
-                (
-                    name,
-                    "storage",
-                    (discharge[k] * hw).sum(axis=(1, 2)) / 1000.0,
-                    (charge[k] * hw).sum(axis=(1, 2)) / 1000.0,
-                )
+    electricity = _concat(
+        [
+            pd.DataFrame(
+                {"technology": n, "kind": k, "year": years, "generation_twh": gen, "consumption_twh": use}
             )
-    conv_power = value("converter_power")
-    for c, t in enumerate(ctx.electric_converters):
-        add_flow(t.name, "converter", conv_power[c], -1.0)
-    unserved = value("unserved")
-    hourly_parts.append(("unserved", unserved))
-    hourly_parts.append(("final_demand", -inputs.electricity_demand_gw))
-
-    electricity = (
-        pd.concat(
-            [
-                pd.DataFrame(
-                    {"technology": n, "kind": k, "year": years, "generation_twh": gen, "consumption_twh": use}
-                )
-                for n, k, gen, use in yearly_rows
-            ],
-            ignore_index=True,
-        )
-        if yearly_rows
-        else pd.DataFrame(columns=["technology", "kind", "year", "generation_twh", "consumption_twh"])
+            for n, k, gen, use in yearly_rows
+        ],
+        ELECTRICITY_COLUMNS,
     )
-    cap_lookup = cap.set_index(["technology", "year"])["capacity_mw"]
+    cap_lookup = capacity.set_index(["technology", "year"])["capacity_mw"]
     cap_values = cap_lookup.reindex(pd.MultiIndex.from_frame(electricity[["technology", "year"]])).to_numpy()
     with np.errstate(divide="ignore", invalid="ignore"):
         cf = np.where(
@@ -128,24 +137,13 @@ def extract_tables(model: PathwayModel, solution: Solution) -> dict[str, pd.Data
             np.nan,
         )
     electricity["capacity_factor"] = cf
-    # curtailed energy of generators that cost nothing to run: available output less output [TWh]
+    # generators come first, one row per year each, in the order of dispatch.generators
     curtailed = np.zeros(len(electricity))
-    free = [(g, t) for g, t in enumerate(ctx.generators) if t.fuel is None and t.variable_om == 0.0]
-    if free:
-        available = available_output(ctx, [t for _, t in free], x)  # [F, Y, D, H] GW
-        for i, (g, t) in enumerate(free):
-            spilled = np.maximum(((available[i] - generation[g]) * hw).sum(axis=(1, 2)) / 1000.0, 0.0)
-            where = np.flatnonzero(
-                (electricity["technology"] == t.name).to_numpy()
-                & (electricity["kind"] == "generator").to_numpy()
-            )
-            curtailed[where] = spilled
+    curtailed[: dispatch.curtailed_twh.size] = dispatch.curtailed_twh.ravel()
     electricity["curtailed_twh"] = curtailed
 
-    hourly_index = pd.MultiIndex.from_product([years, days, hours], names=["year", "day", "hour"]).to_frame(
-        index=False
-    )
-    weight_col = np.broadcast_to(w[None, :, None], (ctx.Y, ctx.D, ctx.H)).ravel()
+    hourly_index = _hourly_index(values)
+    weight_col = hw.ravel()
     hourly = pd.concat(
         [
             hourly_index.assign(weight_days=weight_col, technology=name, power_mw=(power * 1000).ravel())
@@ -153,236 +151,159 @@ def extract_tables(model: PathwayModel, solution: Solution) -> dict[str, pd.Data
         ],
         ignore_index=True,
     )
+    return electricity, hourly
 
-    # --- fuels -------------------------------------------------------------------------------------------------
-    flows = []
-    supply = value("supply")
-    for i, s in enumerate(inputs.supplies):
-        flows.append(
-            pd.DataFrame(
-                {
-                    "year": years,
-                    "commodity": s.output,
-                    "technology": s.name,
-                    "role": "supply",
-                    "energy_pj": supply[i],
-                }
-            )
+
+# ------------------------------------------------------------------------------------------------------- fuels
+def fuel_tables(values: SolutionValues) -> tuple[pd.DataFrame, pd.DataFrame, pd.DataFrame]:
+    """``fuel_flows`` [PJ/yr] (supply, power-plant input, conversion, final use), ``fuel_supply`` [PJ/yr with the
+    price in currency/GJ] and ``fuel_demand`` [PJ/yr delivered and unserved]."""
+    fuels = values.fuels
+    years = list(fuels.years)
+
+    def flow(commodity: str, technology: str, role: str, energy_pj: np.ndarray) -> pd.DataFrame:
+        return pd.DataFrame(
+            {
+                "year": years,
+                "commodity": commodity,
+                "technology": technology,
+                "role": role,
+                "energy_pj": energy_pj,
+            }
         )
-    fuel_use = value("fuel_use")
-    for i, t in enumerate(ctx.fuel_generators):
-        flows.append(
-            pd.DataFrame(
-                {
-                    "year": years,
-                    "commodity": t.fuel,
-                    "technology": t.name,
-                    "role": "power_input",
-                    "energy_pj": fuel_use[i],
-                }
-            )
+
+    flows = [
+        flow(commodity, name, "supply", fuels.supply_pj[i])
+        for i, (name, commodity) in enumerate(zip(fuels.supplies, fuels.supply_commodities, strict=True))
+    ]
+    flows += [
+        flow(fuel, name, "power_input", fuels.fuel_use_pj[i])
+        for i, (name, fuel) in enumerate(zip(fuels.burners, fuels.burner_fuels, strict=True))
+    ]
+    flows += [
+        flow(output, name, "conversion_output", fuels.electric_conversion_output_pj[c])
+        for c, (name, output) in enumerate(
+            zip(fuels.electric_converters, fuels.electric_converter_outputs, strict=True)
         )
-    for c, t in enumerate(ctx.electric_converters):
-        out = t.efficiency * (conv_power[c] * hw).sum(axis=(1, 2)) * PJ_PER_GWH
+    ]
+    for c, name in enumerate(fuels.fuel_converters):
         flows.append(
-            pd.DataFrame(
-                {
-                    "year": years,
-                    "commodity": t.output,
-                    "technology": t.name,
-                    "role": "conversion_output",
-                    "energy_pj": out,
-                }
-            )
-        )
-    conv_input = value("converter_input")
-    for c, t in enumerate(ctx.fuel_converters):
-        flows.append(
-            pd.DataFrame(
-                {
-                    "year": years,
-                    "commodity": t.input,
-                    "technology": t.name,
-                    "role": "conversion_input",
-                    "energy_pj": conv_input[c],
-                }
-            )
+            flow(fuels.fuel_converter_inputs[c], name, "conversion_input", fuels.converter_input_pj[c])
         )
         flows.append(
-            pd.DataFrame(
-                {
-                    "year": years,
-                    "commodity": t.output,
-                    "technology": t.name,
-                    "role": "conversion_output",
-                    "energy_pj": t.efficiency * conv_input[c],
-                }
+            flow(
+                fuels.fuel_converter_outputs[c], name, "conversion_output", fuels.fuel_conversion_output_pj[c]
             )
         )
-    delivery = value("delivery")
-    fuels = list(inputs.fuels)
     demand_rows = []
-    unserved_fuel = value("unserved_fuel")
-    for p, (d, c) in enumerate(ctx.delivery_pairs):
-        demand = inputs.fuel_demands[d]
-        flows.append(
-            pd.DataFrame(
-                {
-                    "year": years,
-                    "commodity": fuels[c],
-                    "technology": demand.name,
-                    "role": "final_use",
-                    "energy_pj": delivery[p],
-                }
-            )
-        )
+    for p, (demand, commodity) in enumerate(
+        zip(fuels.delivery_demands, fuels.delivery_commodities, strict=True)
+    ):
+        flows.append(flow(commodity, demand, "final_use", fuels.delivery_pj[p]))
         demand_rows.append(
             pd.DataFrame(
                 {
                     "year": years,
-                    "demand": demand.name,
-                    "commodity": fuels[c],
-                    "delivered_pj": delivery[p],
+                    "demand": demand,
+                    "commodity": commodity,
+                    "delivered_pj": fuels.delivery_pj[p],
                     "unserved_pj": 0.0,
                 }
             )
         )
-    for d, demand in enumerate(inputs.fuel_demands):
-        if unserved_fuel.size and unserved_fuel[d].any():
+    for d, demand in enumerate(fuels.demands):
+        if fuels.unserved_fuel_pj[d].any():
             demand_rows.append(
                 pd.DataFrame(
                     {
                         "year": years,
-                        "demand": demand.name,
+                        "demand": demand,
                         "commodity": "(unserved)",
                         "delivered_pj": 0.0,
-                        "unserved_pj": unserved_fuel[d],
+                        "unserved_pj": fuels.unserved_fuel_pj[d],
                     }
                 )
             )
-    fuel_flows = (
-        pd.concat(flows, ignore_index=True)
-        if flows
-        else pd.DataFrame(columns=["year", "commodity", "technology", "role", "energy_pj"])
+    fuel_supply = _concat(
+        [
+            pd.DataFrame(
+                {
+                    "year": years,
+                    "supply": name,
+                    "commodity": fuels.supply_commodities[i],
+                    "origin": fuels.supply_origins[i],
+                    "supply_pj": fuels.supply_pj[i],
+                    "price_per_gj": fuels.supply_price_per_gj[i],
+                }
+            )
+            for i, name in enumerate(fuels.supplies)
+        ],
+        FUEL_SUPPLY_COLUMNS,
     )
-    fuel_demand = (
-        pd.concat(demand_rows, ignore_index=True)
-        if demand_rows
-        else pd.DataFrame(columns=["year", "demand", "commodity", "delivered_pj", "unserved_pj"])
-    )
-    fuel_supply = (
-        pd.concat(
-            [
-                pd.DataFrame(
-                    {
-                        "year": years,
-                        "supply": s.name,
-                        "commodity": s.output,
-                        "origin": s.origin,
-                        "supply_pj": supply[i],
-                        "price_per_gj": s.price,
-                    }
-                )
-                for i, s in enumerate(inputs.supplies)
-            ],
-            ignore_index=True,
-        )
-        if inputs.supplies
-        else pd.DataFrame(columns=["year", "supply", "commodity", "origin", "supply_pj", "price_per_gj"])
-    )
+    return _concat(flows, FUEL_FLOW_COLUMNS), fuel_supply, _concat(demand_rows, FUEL_DEMAND_COLUMNS)
 
-    # --- emissions by source -----------------------------------------------------------------------------------
-    ef = inputs.emission_factor
-    emission_parts = []
-    for i, t in enumerate(ctx.fuel_generators):
-        if ef.get(t.fuel, 0.0):
-            emission_parts.append((t.name, "power", fuel_use[i] * ef[t.fuel]))
-    for p, (d, c) in enumerate(ctx.delivery_pairs):
-        if ef.get(fuels[c], 0.0):
-            emission_parts.append(
-                (f"{inputs.fuel_demands[d].name} ({fuels[c]})", "final use", delivery[p] * ef[fuels[c]])
+
+# --------------------------------------------------------------------------------------------------- emissions
+def emissions_tables(values: SolutionValues) -> tuple[pd.DataFrame, pd.DataFrame]:
+    """``emissions`` [MtCO2/yr] by source and ``emissions_total`` [MtCO2] with the budget accounting."""
+    emissions, policy = values.emissions, values.policy
+    years = list(emissions.years)
+    by_source = _concat(
+        [
+            pd.DataFrame(
+                {
+                    "year": years,
+                    "source": name,
+                    "sector": sector,
+                    "emissions_mtco2": emissions.by_source_mtco2[i],
+                }
             )
-    for c, t in enumerate(ctx.fuel_converters):
-        if t.process_emission_factor:
-            emission_parts.append(
-                (t.name, "conversion", conv_input[c] * t.efficiency * t.process_emission_factor)
-            )
-    for c, t in enumerate(ctx.electric_converters):
-        if t.process_emission_factor:
-            emission_parts.append(
-                (
-                    t.name,
-                    "conversion",
-                    t.efficiency
-                    * (conv_power[c] * hw).sum(axis=(1, 2))
-                    * PJ_PER_GWH
-                    * t.process_emission_factor,
-                )
-            )
-    emissions = (
-        pd.concat(
-            [
-                pd.DataFrame({"year": years, "source": n, "sector": s, "emissions_mtco2": v})
-                for n, s, v in emission_parts
-            ],
-            ignore_index=True,
-        )
-        if emission_parts
-        else pd.DataFrame(columns=["year", "source", "sector", "emissions_mtco2"])
+            for i, (name, sector) in enumerate(zip(emissions.sources, emissions.sectors, strict=True))
+        ],
+        EMISSIONS_COLUMNS,
     )
-    total = value("emissions")
+    total = emissions.total_mtco2
     emissions_total = pd.DataFrame(
         {"year": years, "emissions_mtco2": total, "cumulative_mtco2": np.cumsum(total)}
     )
-    if inputs.budget_mt is not None:
-        first, last = inputs.budget_years
-        inside = (inputs.years >= first) & (inputs.years <= last)
+    if policy.budget_mtco2 is not None:
+        first, last = policy.budget_years
+        year_array = np.asarray(years)
+        inside = (year_array >= first) & (year_array <= last)
         counted = np.cumsum(np.where(inside, total, 0.0))
-        emissions_total["budget_mtco2"] = inputs.budget_mt
+        emissions_total["budget_mtco2"] = policy.budget_mtco2
         emissions_total["cumulative_in_budget_period_mtco2"] = counted
-        emissions_total["remaining_mtco2"] = inputs.budget_mt - counted
+        emissions_total["remaining_mtco2"] = policy.budget_mtco2 - counted
     else:
         emissions_total["budget_mtco2"] = np.nan
         emissions_total["cumulative_in_budget_period_mtco2"] = np.nan
         emissions_total["remaining_mtco2"] = np.nan
+    return by_source, emissions_total
 
-    # --- costs by component (undiscounted and discounted) [million currency] ---------------------------------------
-    annuity = np.zeros(ctx.Y)
-    for i, t in enumerate(techs):
-        y, b = _alive_pairs(ctx.Y, t.lifetime)
-        np.add.at(annuity, y, new[i, b] * t.capex[b] * t.crf)
-    fixed = (capacity * np.array([[t.fixed_om] for t in techs])).sum(axis=0) if techs else np.zeros(ctx.Y)
-    if ctx.storage:
-        e_new, e_cap = value("energy_new"), value("energy_capacity")
-        for k, t in enumerate(ctx.storage):
-            y, b = _alive_pairs(ctx.Y, t.lifetime)
-            np.add.at(annuity, y, e_new[k, b] * t.energy_capex[b] * t.crf)
-            fixed += e_cap[k] * t.energy_fixed_om
-    variable = np.zeros(ctx.Y)
-    for g, t in enumerate(ctx.generators):
-        variable += t.variable_om * (generation[g] * hw).sum(axis=(1, 2))
-    for k, t in enumerate(ctx.storage):
-        variable += t.variable_om * (value("discharge")[k] * hw).sum(axis=(1, 2))
-    for c, t in enumerate(ctx.electric_converters):
-        variable += t.variable_om * (conv_power[c] * hw).sum(axis=(1, 2))
-    for c, t in enumerate(ctx.fuel_converters):
-        variable += t.variable_om / PJ_PER_GWH * conv_input[c]
-    fuel_cost = sum((supply[i] * s.price for i, s in enumerate(inputs.supplies)), np.zeros(ctx.Y))
-    carbon_cost = total * inputs.carbon_price
-    lost_load = inputs.value_of_lost_load * (unserved * hw).sum(axis=(1, 2))
-    lost_fuel = (
-        inputs.value_of_unserved_fuel * unserved_fuel.sum(axis=0) if unserved_fuel.size else np.zeros(ctx.Y)
-    )
+
+# ------------------------------------------------------------------------------------------------------- costs
+def cost_table(values: SolutionValues) -> pd.DataFrame:
+    """``costs`` by component and year [million currency of the price year], undiscounted and discounted."""
+    years = list(values.capacity.years)
+    variable = np.zeros(len(years))
+    for per_technology in (
+        values.dispatch.variable_om_million,
+        values.storage.variable_om_million,
+        values.fuels.converter_variable_om_million,
+    ):
+        for row in per_technology:
+            variable += row
     components = {
-        "investment": annuity,
-        "fixed_om": fixed,
+        "investment": values.capacity.investment_million,
+        "fixed_om": values.capacity.fixed_om_million,
         "variable_om": variable,
-        "fuel": fuel_cost,
-        "carbon_price": carbon_cost,
-        "unserved_electricity": lost_load,
-        "unserved_fuel": lost_fuel,
+        "fuel": values.fuels.fuel_cost_million,
+        "carbon_price": values.emissions.carbon_price_cost_million,
+        "unserved_electricity": values.dispatch.unserved_cost_million,
+        "unserved_fuel": values.fuels.unserved_fuel_cost_million,
     }
-    costs = pd.concat(
+    df = values.inputs.discount_factor
+    return pd.concat(
         [
             pd.DataFrame({"year": years, "component": k, "cost_million": v, "discounted_million": v * df})
             for k, v in components.items()
@@ -390,53 +311,56 @@ def extract_tables(model: PathwayModel, solution: Solution) -> dict[str, pd.Data
         ignore_index=True,
     )
 
-    # --- prices from duals -------------------------------------------------------------------------------------
-    offsets = lp.row_offsets()
-    dual = solution.row_dual
 
-    def row_duals(name: str) -> np.ndarray:
-        block = lp.row_blocks[name]
-        return dual[offsets[name] : offsets[name] + block.size].reshape(block.shape)
-
-    balance = row_duals("electricity_balance")  # [million / GW per representative hour]
-    price = balance * 1000.0 / (w[None, :, None] * df[:, None, None])  # [currency/MWh]
-    electricity_price = hourly_index.assign(price_per_mwh=price.ravel())
-    if "fuel_balance" in lp.row_blocks:
-        fb = row_duals("fuel_balance") / df[None, :]
-        fuel_price = _frame(fb, {"commodity": fuels, "year": years}, "price_per_gj")[
-            ["year", "commodity", "price_per_gj"]
-        ]
+# ------------------------------------------------------------------------------------------------------ prices
+def price_tables(values: SolutionValues) -> tuple[pd.DataFrame, pd.DataFrame, pd.DataFrame]:
+    """``electricity_price`` [currency/MWh] by representative hour, ``fuel_price`` [currency/GJ] and
+    ``carbon_price`` [currency/tCO2] by year, all from the duals the families read back."""
+    fuels, policy = values.fuels, values.policy
+    electricity_price = _hourly_index(values).assign(
+        price_per_mwh=values.dispatch.electricity_price_per_mwh.ravel()
+    )
+    if fuels.commodities:
+        fuel_price = _frame(
+            fuels.fuel_price_per_gj,
+            {"commodity": list(fuels.commodities), "year": list(fuels.years)},
+            "price_per_gj",
+        )[FUEL_PRICE_COLUMNS]
     else:
-        fuel_price = pd.DataFrame(columns=["year", "commodity", "price_per_gj"])
-    from_budget = np.zeros(ctx.Y)
-    if "carbon_budget" in lp.row_blocks:
-        first, last = inputs.budget_years
-        inside = (inputs.years >= first) & (inputs.years <= last)
-        from_budget = np.where(inside, -row_duals("carbon_budget")[0] / df, 0.0)
-    from_cap = np.zeros(ctx.Y)
-    if "emission_cap" in lp.row_blocks:
-        positions = np.searchsorted(inputs.years, ctx.cap_years)
-        from_cap[positions] = -row_duals("emission_cap") / df[positions]
+        fuel_price = pd.DataFrame(columns=FUEL_PRICE_COLUMNS)
+    path = values.inputs.carbon_price
     carbon_price = pd.DataFrame(
         {
-            "year": years,
-            "carbon_price_per_tco2": from_budget + from_cap + inputs.carbon_price,
-            "from_budget_per_tco2": from_budget,
-            "from_cap_per_tco2": from_cap,
-            "from_path_per_tco2": inputs.carbon_price,
+            "year": list(policy.years),
+            "carbon_price_per_tco2": policy.budget_carbon_price_per_tco2
+            + policy.cap_carbon_price_per_tco2
+            + path,
+            "from_budget_per_tco2": policy.budget_carbon_price_per_tco2,
+            "from_cap_per_tco2": policy.cap_carbon_price_per_tco2,
+            "from_path_per_tco2": path,
         }
     )
+    return electricity_price, fuel_price, carbon_price
 
-    # --- LCOE of each generator's new build in each year, at its realised capacity factor ---------------------------
+
+# -------------------------------------------------------------------------------------------------------- lcoe
+def lcoe_table(
+    values: SolutionValues, capacity: pd.DataFrame, electricity: pd.DataFrame, fuel_price: pd.DataFrame
+) -> pd.DataFrame:
+    """``lcoe`` [currency/MWh] of each generator's new build in each year, at its realised capacity factor, from the
+    ``capacity``, ``electricity`` and ``fuel_price`` tables."""
+    technologies = {t.name: t for t in values.inputs.technologies}
+    cap_lookup = capacity.set_index(["technology", "year"])["capacity_mw"]
     fuel_price_lookup = (
         fuel_price.set_index(["commodity", "year"])["price_per_gj"] if len(fuel_price) else None
     )
-    lcoe_rows = []
     gen_yearly = electricity[electricity["kind"] == "generator"].set_index(["technology", "year"])
-    for t in ctx.generators:
-        for yi, year in enumerate(years):
-            energy_twh = gen_yearly.loc[(t.name, year), "generation_twh"]
-            cap_mw = cap_lookup.loc[(t.name, year)]
+    rows = []
+    for name in values.dispatch.generators:
+        t = technologies[name]
+        for yi, year in enumerate(values.dispatch.years):
+            energy_twh = gen_yearly.loc[(name, year), "generation_twh"]
+            cap_mw = cap_lookup.loc[(name, year)]
             if cap_mw <= 1e-6 or energy_twh <= 1e-9:
                 continue
             factor = energy_twh * 1e6 / (cap_mw * 8760.0)
@@ -448,29 +372,44 @@ def extract_tables(model: PathwayModel, solution: Solution) -> dict[str, pd.Data
                 fuel_per_mwh = (
                     float(fuel_price_lookup.loc[(t.fuel, year)]) * 3.6 / t.efficiency
                 )  # currency/GJ x GJ/MWh
-            lcoe_rows.append((t.name, year, fixed_per_mwh + t.variable_om * 1000.0 + fuel_per_mwh, factor))
-    lcoe = pd.DataFrame(lcoe_rows, columns=["technology", "year", "lcoe_per_mwh", "capacity_factor"])
+            rows.append((name, year, fixed_per_mwh + t.variable_om * 1000.0 + fuel_per_mwh, factor))
+    return pd.DataFrame(rows, columns=LCOE_COLUMNS)
 
+
+# ----------------------------------------------------------------------------------------------- entry points
+def tables_from_values(values: SolutionValues) -> dict[str, pd.DataFrame]:
+    """Every result table of a run (the names of :mod:`pathcast.results.run_result`) from its read-back values."""
+    capacity, storage_energy = capacity_tables(values)
+    electricity, electricity_hourly = electricity_tables(values, capacity)
+    fuel_flows, fuel_supply, fuel_demand = fuel_tables(values)
+    emissions, emissions_total = emissions_tables(values)
+    electricity_price, fuel_price, carbon_price = price_tables(values)
     return {
-        "capacity": cap,
-        "storage_energy": energy,
+        "capacity": capacity,
+        "storage_energy": storage_energy,
         "electricity": electricity,
-        "electricity_hourly": hourly,
+        "electricity_hourly": electricity_hourly,
         "fuel_flows": fuel_flows,
         "fuel_supply": fuel_supply,
         "fuel_demand": fuel_demand,
         "emissions": emissions,
         "emissions_total": emissions_total,
-        "costs": costs,
+        "costs": cost_table(values),
         "electricity_price": electricity_price,
         "fuel_price": fuel_price,
         "carbon_price": carbon_price,
-        "lcoe": lcoe,
+        "lcoe": lcoe_table(values, capacity, electricity, fuel_price),
     }
 
 
-def headline_figures(model: PathwayModel, solution: Solution, tables: dict[str, pd.DataFrame]) -> dict:
-    inputs = model.inputs
+def extract_tables(model: PathwayModel, solution: Solution) -> dict[str, pd.DataFrame]:
+    """Every result table of a solved run: reads the solution back through the model's families first."""
+    return tables_from_values(read_solution(model, solution))
+
+
+def headline_from_values(values: SolutionValues, tables: dict[str, pd.DataFrame]) -> dict:
+    """The run's headline figures (summary.json) from its read-back values and its tables."""
+    inputs = values.inputs
     et = tables["emissions_total"]
     cap = tables["capacity"]
     final = int(inputs.years[-1])
@@ -487,14 +426,14 @@ def headline_figures(model: PathwayModel, solution: Solution, tables: dict[str, 
     )
     fuel_demand = tables["fuel_demand"]
     cumulative = float(et["emissions_mtco2"].sum())
-    summary = {
+    return {
         "scenario": inputs.name,
         "currency": inputs.currency,
         "price_year": inputs.price_year,
         "base_year": int(inputs.years[0]),
         "final_year": final,
         "total_discounted_cost_million": float(costs["discounted_million"].sum()),
-        "objective_million": float(solution.objective),
+        "objective_million": values.objective_million,
         "cumulative_emissions_mtco2": cumulative,
         "first_year_emissions_mtco2": float(et["emissions_mtco2"].iloc[0]),
         "final_year_emissions_mtco2": float(et["emissions_mtco2"].iloc[-1]),
@@ -511,4 +450,8 @@ def headline_figures(model: PathwayModel, solution: Solution, tables: dict[str, 
         "unserved_fuel_pj": float(fuel_demand["unserved_pj"].sum()) if len(fuel_demand) else 0.0,
         "electricity_demand_final_year_twh": float(inputs.electricity_demand_twh[-1]),
     }
-    return summary
+
+
+def headline_figures(model: PathwayModel, solution: Solution, tables: dict[str, pd.DataFrame]) -> dict:
+    """The run's headline figures (summary.json): reads the solution back through the model's families first."""
+    return headline_from_values(read_solution(model, solution), tables)
