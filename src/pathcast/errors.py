@@ -4,6 +4,8 @@ from __future__ import annotations
 
 import difflib
 from collections.abc import Iterable
+from pathlib import Path
+from typing import Any
 
 __all__ = [
     "PathcastError",
@@ -11,6 +13,7 @@ __all__ = [
     "InfeasibleError",
     "SolverError",
     "did_you_mean",
+    "located_error",
     "EXIT_OK",
     "EXIT_BAD_INPUT",
     "EXIT_INFEASIBLE",
@@ -64,3 +67,12 @@ def did_you_mean(name: str, choices: Iterable[str]) -> str:
     choices = list(choices)
     close = difflib.get_close_matches(str(name), choices, n=1, cutoff=0.6)
     return f" (did you mean {close[0]!r}?)" if close else ""
+
+
+def located_error(file: Path | str, path: tuple | str, value: Any, expected: str) -> ScenarioError:
+    """Build the one-sentence error: ``file: field.path: got value; expected ...`` (the value shown with ``!r``,
+    cut to 80 characters)."""
+    where = path if isinstance(path, str) else ".".join(str(p) for p in path)
+    text = repr(value)
+    shown = text if len(text) <= 80 else text[:77] + "..."
+    return ScenarioError(f"{file}: {where}: got {shown}; expected {expected}.", file=str(file), field=where)

@@ -18,8 +18,9 @@ from typing import Any
 import yaml
 from pydantic import BaseModel, ValidationError
 
-from ..errors import ScenarioError, did_you_mean
+from ..errors import ScenarioError, did_you_mean, located_error
 from .schema import Scenario
+from .validation import check_scenario
 
 __all__ = [
     "load_scenario",
@@ -53,18 +54,6 @@ class LoadedScenario:
 
     def file_of(self, path: tuple) -> Path:
         return file_for(self.provenance, path, self.path)
-
-
-def located_error(file: Path | str, path: tuple | str, value: Any, expected: str) -> ScenarioError:
-    """Build the one-sentence error: ``file: field.path: got value; expected ...``."""
-    where = path if isinstance(path, str) else ".".join(str(p) for p in path)
-    shown = _show_value(value)
-    return ScenarioError(f"{file}: {where}: got {shown}; expected {expected}.", file=str(file), field=where)
-
-
-def _show_value(value: Any) -> str:
-    text = repr(value)
-    return text if len(text) <= 80 else text[:77] + "..."
 
 
 def file_for(provenance: Provenance, path: tuple, default: Path) -> Path:
@@ -437,8 +426,6 @@ def _currency_of(raw: dict[str, Any]) -> str:
 
 def load_scenario(path: str | Path) -> LoadedScenario:
     """Read, merge and validate a scenario; raise ScenarioError with a located one-sentence message."""
-    from .validation import check_scenario
-
     path = Path(path)
     raw, provenance, files = read_yaml_with_extends(path)
     raw = _resolve_csv(raw, (), provenance, path.resolve())
@@ -583,8 +570,6 @@ def load_scenario_mapping(
 ) -> LoadedScenario:
     """Validate a merged, CSV-resolved raw mapping as :func:`load_scenario` does; ``path`` is the file named in errors
     (and, with ``provenance``, the default owner of fields the provenance does not know)."""
-    from .validation import check_scenario
-
     path = Path(path).resolve()
     provenance = provenance or {}
     currency = _currency_of(raw)

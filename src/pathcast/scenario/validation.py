@@ -8,7 +8,7 @@ from typing import TYPE_CHECKING
 
 import networkx as nx
 
-from ..errors import did_you_mean
+from ..errors import did_you_mean, located_error
 from .schema import ELECTRICITY, Scenario
 
 if TYPE_CHECKING:
@@ -41,8 +41,6 @@ def name_problem(name: object) -> str | None:
 
 def check_scenario(loaded: LoadedScenario) -> None:
     """Raise ScenarioError for the first problem found, located to its file and field."""
-    from .loader import located_error
-
     s = loaded.scenario
 
     def fail(path: tuple, value, expected: str):
