@@ -114,13 +114,16 @@ def solve_inputs(
 ) -> Run:
     """Build and solve the model of ``inputs``; raise InfeasibleError or SolverError unless it solves to optimality.
 
-    ``inputs`` are first checked to be finite and plausible (:func:`~pathcast.scenario.plausibility.check_inputs`,
-    ScenarioError). An infeasible model raises InfeasibleError naming the scenario limits that conflict (HiGHS's
+    ``inputs`` are first checked to be finite and plausible (:func:`~pathcast.scenario.plausibility.check_inputs`)
+    and the solver settings against HiGHS's option list (:mod:`pathcast.scenario.solver_options`), both ScenarioError. An infeasible model raises InfeasibleError naming the scenario limits that conflict (HiGHS's
     irreducible infeasible subsystem, :mod:`pathcast.infeasibility`); an unbounded one (a cost that falls without
     limit) raises ScenarioError naming what lowers the cost."""
     say = progress or (lambda _message: None)
     times = times or StageTimes()
     check_inputs(inputs)
+    options = solver_options_from(inputs, solver)
+    settings = {"options": options.options, "threads": options.threads, "time_limit_s": options.time_limit_s}
+    check_solver_settings(settings, lambda _path: source or f"scenario {inputs.name!r}")
     started = time.perf_counter()
     say("building the linear program")
     model = build_linear_program(inputs)
@@ -132,7 +135,6 @@ def solve_inputs(
     )
     handles = to_pyomo(model.lp)
     times.build_pyomo_s = time.perf_counter() - started
-    options = solver_options_from(inputs, solver)
     say("solving with HiGHS")
     solution = solve_highs(handles, matrix.shape[0], matrix.shape[1], options)
     times.handoff_s = solution.handoff_s

@@ -181,6 +181,11 @@ def solve_highs(
                 "(check them with 'pathcast check')."
             )
     h.passModel(lp)
+    if int(h.getOptionValue("threads")[1]) != 0:
+        # HiGHS keeps one thread scheduler per process, sized by the first solve; a solve that asks for another
+        # number of threads is refused (status "not set") until that scheduler is reset. pathcast solves one LP at
+        # a time in a process, so resetting here is safe.
+        highspy.Highs.resetGlobalScheduler(True)
     handoff_s = time.perf_counter() - started
     started = time.perf_counter()
     h.run()

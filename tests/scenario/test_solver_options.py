@@ -141,3 +141,33 @@ def test_no_highs_import_without_highs_settings():
         [sys.executable, "-c", PROBE], capture_output=True, text=True, check=True, timeout=120
     )
     assert json.loads(done.stdout.strip().splitlines()[-1]) is False
+
+
+def test_solve_inputs_checks_the_settings_of_analysis_runs(tiny_run):
+    # 'pathcast delay' and the analytics solve ModelInputs without the scenario file: the scenario is named instead
+    from dataclasses import replace
+
+    from pathcast.pipeline import solve_inputs
+
+    inputs = replace(tiny_run.model.inputs, solver={"options": {"presolv": "off"}})
+    with pytest.raises(
+        ScenarioError,
+        match=r"^scenario 'tiny': solver\.options: got 'presolv'; expected HiGHS option names \(did you mean "
+        r"'presolve'\?\)\.$",
+    ):
+        solve_inputs(inputs)
+
+
+def test_a_thread_count_different_from_an_earlier_solve_in_the_process_still_solves(tiny_run):
+    # HiGHS sizes one thread scheduler per process at its first solve and refuses another 'threads' value until it is
+    # reset (HiGHS's own error: "global scheduler has already been initialized"); solve_highs resets it
+    from dataclasses import replace
+
+    from pathcast.pipeline import solve_inputs
+
+    inputs = tiny_run.model.inputs
+    objectives = [
+        solve_inputs(replace(inputs, solver={"threads": threads})).solution.objective
+        for threads in (2, 1, None)
+    ]
+    assert objectives == pytest.approx([tiny_run.solution.objective] * 3, rel=1e-7)
