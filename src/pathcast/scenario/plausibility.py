@@ -24,8 +24,8 @@ from typing import TYPE_CHECKING, Any
 import numpy as np
 from pydantic import BaseModel
 
+from ..errors import located_error
 from .inputs import ModelInputs, TechnologyInputs
-from .loader import located_error
 
 if TYPE_CHECKING:
     from .loader import LoadedScenario
