@@ -211,3 +211,16 @@ def test_a_lognormal_so_wide_that_samples_overflow_is_refused_without_warnings(w
         warnings.simplefilter("error")  # a RuntimeWarning would escape instead of the ScenarioError
         load_ensemble(write_ensemble(text))
     assert capsys.readouterr().err == ""
+
+
+def test_a_value_beyond_the_scenario_plausibility_bound_is_refused(write_ensemble):
+    # 5e6 TWh/yr passes the schema (> 0) but not pathcast run's plausibility bound of 1e6 TWh/yr on electricity demand
+    text = HEAD.replace("latin_hypercube\nmembers: 20\nseed: 3", "grid") + (
+        "  demand:\n    path: demand.electricity.base_year_twh\n    as: absolute\n    values: [10, 5000000]\n"
+    )
+    with pytest.raises(
+        ScenarioError,
+        match=r"inputs\.demand\.values\.1: got 5000000 \(a listed value\); expected a value the scenario field "
+        r"demand\.electricity\.base_year_twh accepts: .*plausibility bound",
+    ):
+        load_ensemble(write_ensemble(text))

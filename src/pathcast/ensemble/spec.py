@@ -355,6 +355,17 @@ def ensemble_facts_if_ensemble(path: str | Path) -> dict | None:
     return facts
 
 
+def check_base(base: LoadedScenario) -> None:
+    """The checks ``pathcast run`` makes of a scenario before it solves: solver settings against HiGHS's option list
+    and every input finite and plausible (ScenarioError naming the base scenario's file)."""
+    from ..scenario.inputs import prepare_inputs
+    from ..scenario.plausibility import check_inputs
+    from ..scenario.solver_options import check_solver_settings
+
+    check_solver_settings(base.scenario.solver.model_dump(), base.file_of)
+    check_inputs(prepare_inputs(base.scenario), base)
+
+
 def load_ensemble(path: str | Path) -> EnsembleSpec:
     """Read and validate an ensemble file and its base scenario; raise ScenarioError with a located sentence."""
     from .validity import check_numbers, check_ranges
@@ -376,6 +387,7 @@ def load_ensemble(path: str | Path) -> EnsembleSpec:
         raise located_error(path, "base", spec.base, f"an existing scenario file (looked for {base_path})")
     raw, provenance, files = read_scenario_mapping(base_path)
     base = load_scenario_mapping(raw, base_path, provenance=provenance, files=files)
+    check_base(base)
 
     paths: dict[str, tuple] = {}
     base_values: dict[str, Any] = {}

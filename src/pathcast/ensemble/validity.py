@@ -18,7 +18,9 @@ anything is solved or written), each failure one located sentence naming the ens
    values with ``as: absolute``); the field's value it makes (the base value times the multiplier, or the value
    itself) must be finite and of magnitude at most :data:`PLAUSIBLE_LIMIT`, as written and in the field's own unit
    once validated; and the base scenario with that one value must pass the scenario's own validation
-   (:func:`pathcast.scenario.loader.load_scenario_mapping`), whose rule the sentence quotes. The field rules are
+   (:func:`pathcast.scenario.loader.load_scenario_mapping`, then the plausibility bounds of
+   :func:`pathcast.scenario.plausibility.check_inputs` that ``pathcast run`` applies), whose rule the sentence
+   quotes. The base scenario itself is checked the same way first, so its own faults name its file. The field rules are
    ranges, so checking the extremes covers every member's value of that input.
 
    Decision: a value outside the range fails the whole run at check time (exit 2, nothing solved or written), rather
@@ -40,7 +42,9 @@ from pathlib import Path
 from typing import Any
 
 from ..errors import ScenarioError
+from ..scenario.inputs import prepare_inputs
 from ..scenario.loader import load_scenario_mapping, value_at
+from ..scenario.plausibility import check_inputs
 
 __all__ = [
     "PLAUSIBLE_LIMIT",
@@ -227,6 +231,7 @@ def check_ranges(spec, members: list | None = None) -> None:
             raw = apply_overrides(copy.deepcopy(spec.base_raw), ((spec.paths[label], item.apply, value),))
             try:
                 loaded = load_scenario_mapping(raw, spec.base_path, provenance=provenance, files=files)
+                check_inputs(prepare_inputs(loaded.scenario), loaded)
             except ScenarioError as error:
                 raise refuse(_rule_text(spec, field, error)) from None
             for number in _numbers_in(_validated_value(loaded, spec.paths[label])):

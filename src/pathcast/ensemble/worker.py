@@ -32,6 +32,7 @@ from ..pipeline import solver_options_from
 from ..results.extract import extract_tables, headline_figures
 from ..scenario.inputs import prepare_inputs
 from ..scenario.loader import load_scenario_mapping
+from ..scenario.plausibility import check_inputs
 from ..solve import Solution, SolverOptions, _status_name, handoff, highs_options_for, new_highs
 from .members import Override, apply_overrides
 from .validity import member_error
@@ -191,17 +192,18 @@ def _solve(context: SharedContext, task: MemberTask, *, warm_start: bool, keep_b
 
     try:
         raw = apply_overrides(copy.deepcopy(context.base_raw), task.overrides)
-        try:
+        try:  # the member's scenario, validated as a scenario file would be, and its inputs finite and plausible
             loaded = load_scenario_mapping(
                 raw, context.base_path, provenance=context.provenance, files=context.files
             )
+            lap("validate_s")
+            inputs = prepare_inputs(loaded.scenario)
+            check_inputs(inputs, loaded)
+            lap("inputs_s")
         except ScenarioError as error:
             if not task.samples or not context.ensemble_file:
                 raise
             raise member_error(context.ensemble_file, context.input_paths, task.samples, error) from None
-        lap("validate_s")
-        inputs = prepare_inputs(loaded.scenario)
-        lap("inputs_s")
         model = build_linear_program(inputs)
         matrix, row_lower, row_upper = model.lp.matrix()
         lap("build_lp_s")
