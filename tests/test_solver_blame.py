@@ -19,9 +19,8 @@ from pathcast.cli import main
 from pathcast.errors import InfeasibleError, ScenarioError
 from pathcast.infeasibility import conflict_members, explain_no_optimum, limits_in_scenario
 from pathcast.model.build import build_linear_program
-from pathcast.model.pyomo_model import to_pyomo
 from pathcast.pipeline import solve_inputs
-from pathcast.solve import Conflict, SolverOptions, find_conflict, solve_highs
+from pathcast.solve import Conflict, SolverOptions, find_conflict, solve_lp
 from tests.conftest import tiny_mapping, write_scenario
 
 NOT_IN_TINY = ("carbon budget", "caps", "cap ", "clean-electricity share", "minimum build", "phase-out")
@@ -184,7 +183,7 @@ def test_unbounded_model_names_the_negative_price(tiny_run):
     supplies = (replace(inputs.supplies[0], price=np.full(len(inputs.years), -5.0)), *inputs.supplies[1:])
     model = build_linear_program(replace(inputs, supplies=supplies))
     matrix, _, _ = model.lp.matrix()
-    solution = solve_highs(to_pyomo(model.lp), matrix.shape[0], matrix.shape[1], SolverOptions())
+    solution = solve_lp(model.lp, SolverOptions())
     assert solution.status in ("unbounded_or_infeasible", "unbounded")
     conflict = find_conflict(solution)
     assert conflict.kind == "unbounded"
@@ -207,7 +206,7 @@ def test_conflict_members_merge_years(tiny_run):
     techs = tuple(replace(t, max_build_gw=np.full_like(t.max_build_gw, 0.01)) for t in inputs.technologies)
     model = build_linear_program(replace(inputs, technologies=techs))
     matrix, _, _ = model.lp.matrix()
-    solution = solve_highs(to_pyomo(model.lp), matrix.shape[0], matrix.shape[1], SolverOptions())
+    solution = solve_lp(model.lp, SolverOptions())
     assert solution.status == "infeasible"
     members = conflict_members(model, find_conflict(solution))
     margin = [m for m in members if m.kind == "reserve margin"]

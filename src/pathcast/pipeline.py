@@ -1,4 +1,4 @@
-"""Orchestration: scenario file -> inputs -> LP -> Pyomo -> HiGHS -> RunResult, with stage times.
+"""Orchestration: scenario file -> inputs -> LP (plus users' rules) -> HiGHS -> RunResult, with stage times.
 
 Compute only: nothing here prints or writes files (the CLI and writers do)."""
 
@@ -6,7 +6,7 @@ from __future__ import annotations
 
 import platform
 import time
-from collections.abc import Callable
+from collections.abc import Callable, Sequence
 from dataclasses import dataclass, field, replace
 from importlib import metadata as importlib_metadata
 from pathlib import Path
@@ -15,16 +15,24 @@ import numpy as np
 
 from .errors import InfeasibleError, ScenarioError, SolverError
 from .model.build import PathwayModel, build_linear_program
-from .model.pyomo_model import to_pyomo
 from .results.extract import extract_tables, headline_figures
 from .results.run_result import RunResult
+from .scenario.extensions import ExtensionSpec, extension_specs
 from .scenario.inputs import ModelInputs, prepare_inputs
 from .scenario.loader import LoadedScenario, load_scenario
 from .scenario.plausibility import check_inputs
 from .scenario.solver_options import SETTING_OPTIONS, check_solver_settings
-from .solve import Solution, SolverOptions, find_conflict, solve_highs
+from .solve import Solution, SolverOptions, find_conflict, solve_lp
 
-__all__ = ["run_scenario", "solve_inputs", "StageTimes", "Run", "solver_options_from", "package_versions"]
+__all__ = [
+    "run_scenario",
+    "solve_inputs",
+    "check_optimal",
+    "StageTimes",
+    "Run",
+    "solver_options_from",
+    "package_versions",
+]
 
 Progress = Callable[[str], None]
 
@@ -35,7 +43,6 @@ class StageTimes:
 
     load_s: float = 0.0
     build_lp_s: float = 0.0
-    build_pyomo_s: float = 0.0
     handoff_s: float = 0.0
     solve_s: float = 0.0
     extract_s: float = 0.0
@@ -45,7 +52,6 @@ class StageTimes:
         return (
             self.load_s
             + self.build_lp_s
-            + self.build_pyomo_s
             + self.handoff_s
             + self.solve_s
             + self.extract_s
@@ -125,36 +131,18 @@ def solve_inputs(
     settings = {"options": options.options, "threads": options.threads, "time_limit_s": options.time_limit_s}
     check_solver_settings(settings, lambda _path: source or f"scenario {inputs.name!r}")
     started = time.perf_counter()
-    say("building the linear program")
+    say("building the linear program" + (" and the extensions' rules" if inputs.extensions else ""))
     model = build_linear_program(inputs)
     matrix, _, _ = model.lp.matrix()
     times.build_lp_s = time.perf_counter() - started
-    started = time.perf_counter()
     say(
-        f"building the Pyomo model ({matrix.shape[0]:,} rows, {matrix.shape[1]:,} columns, {matrix.nnz:,} nonzeros)"
+        f"solving with HiGHS ({matrix.shape[0]:,} rows, {matrix.shape[1]:,} columns, {matrix.nnz:,} nonzeros)"
     )
-    handles = to_pyomo(model.lp)
-    times.build_pyomo_s = time.perf_counter() - started
-    say("solving with HiGHS")
-    solution = solve_highs(handles, matrix.shape[0], matrix.shape[1], options)
+    solution = solve_lp(model.lp, options)
     times.handoff_s = solution.handoff_s
     times.solve_s = solution.solve_s
-    if solution.status != "optimal" and require_optimal:
-        if solution.status in ("infeasible", "unbounded_or_infeasible"):
-            from .infeasibility import explain_no_optimum
-
-            say("asking HiGHS which limits conflict")
-            where = source or f"scenario {inputs.name!r}"
-            message, diagnosis, infeasible = explain_no_optimum(
-                model, find_conflict(solution), solution.status, where
-            )
-            if infeasible:
-                raise InfeasibleError(message, diagnosis=diagnosis)
-            raise ScenarioError(message, file=source or None)
-        raise SolverError(
-            f"scenario {inputs.name!r}: HiGHS stopped with status {solution.status!r} after "
-            f"{solution.solve_s:.1f} s; try another solver method (--method) or a longer time limit."
-        )
+    if require_optimal:
+        check_optimal(model, solution, source or f"scenario {inputs.name!r}", say)
     started = time.perf_counter()
     say("reading results")
     tables = extract_tables(model, solution)
@@ -195,6 +183,29 @@ def solve_inputs(
     return Run(result=result, model=model, solution=solution, times=times)
 
 
+def check_optimal(model: PathwayModel, solution: Solution, where: str, say: Progress | None = None) -> None:
+    """The one status check of every solve: return when ``solution`` is optimal; otherwise raise InfeasibleError
+    naming the scenario limits that conflict (HiGHS's irreducible infeasible subsystem), ScenarioError for an
+    unbounded model (naming what lowers the cost), or SolverError for a time limit or another stop."""
+    if solution.status == "optimal":
+        return
+    if solution.status in ("infeasible", "unbounded_or_infeasible"):
+        from .infeasibility import explain_no_optimum
+
+        if say is not None:
+            say("asking HiGHS which limits conflict")
+        message, diagnosis, infeasible = explain_no_optimum(
+            model, find_conflict(solution), solution.status, where
+        )
+        if infeasible:
+            raise InfeasibleError(message, diagnosis=diagnosis)
+        raise ScenarioError(message, file=where)
+    raise SolverError(
+        f"{where}: HiGHS stopped with status {solution.status!r} after {solution.solve_s:.1f} s; try another solver "
+        "method (--method) or a longer time limit."
+    )
+
+
 def coefficient_ranges(matrix) -> dict[str, float]:
     data = np.abs(matrix.data)
     data = data[data > 0]
@@ -209,8 +220,10 @@ def run_scenario(
     solver: dict | None = None,
     progress: Progress | None = None,
     inputs_hook: Callable[[ModelInputs], ModelInputs] | None = None,
+    extensions: Sequence[ExtensionSpec] = (),
 ) -> Run:
-    """Load (unless given loaded), validate, build and solve one scenario."""
+    """Load (unless given loaded), validate, build and solve one scenario; ``extensions`` are applied after the
+    scenario's own (``--extension`` on the command line)."""
     say = progress or (lambda _message: None)
     times = StageTimes()
     started = time.perf_counter()
@@ -227,6 +240,9 @@ def run_scenario(
         check_solver_settings(overrides, lambda _path: "command line", prefix=())
     inputs = prepare_inputs(loaded.scenario)
     check_inputs(inputs, loaded)
+    rules = (*extension_specs(loaded), *extensions)
+    if rules:
+        inputs = replace(inputs, extensions=rules)
     if inputs_hook is not None:
         inputs = inputs_hook(inputs)
     times.load_s = time.perf_counter() - started

@@ -1,5 +1,5 @@
-"""Hand the Pyomo model to HiGHS in memory (Pyomo's standard-form compiler -> ``highspy.HighsLp``), solve, and read
-the primal values and row duals back in the LP's own column and row order.
+"""Hand the array LP to HiGHS in memory (``LinearProgram.matrix()`` -> ``highspy.HighsLp``), solve, and read the
+primal values and row duals back, in the LP's own column and row order: the one solve path of pathcast.
 
 Duals follow the usual sign convention of a minimisation: a binding ``<=`` row has a dual <= 0, a binding ``>=`` row
 a dual >= 0. They are the change of the total discounted cost [million currency] per unit of the row's right-hand side.
@@ -13,11 +13,9 @@ from dataclasses import dataclass, field
 
 import highspy
 import numpy as np
-from pyomo.common.gc_manager import PauseGC
-from pyomo.repn.plugins.standard_form import LinearStandardFormCompiler
 
 from .errors import SolverError
-from .model.pyomo_model import PyomoHandles
+from .model.linear_program import LinearProgram
 from .scenario.solver_options import highs_value, quiet_highs
 from .solver_methods import METHODS
 
@@ -25,8 +23,10 @@ __all__ = [
     "SolverOptions",
     "Solution",
     "Conflict",
-    "handoff",
-    "solve_highs",
+    "solve_lp",
+    "highs_lp",
+    "highs_basis",
+    "basis_arrays",
     "highs_options_for",
     "new_highs",
     "find_conflict",
@@ -63,8 +63,8 @@ class Solution:
     nonzeros: int
     iterations: dict
     highs: object = field(repr=False, default=None)
-    row_map: np.ndarray | None = field(repr=False, default=None)  # LP row of each HiGHS row
-    col_map: np.ndarray | None = field(repr=False, default=None)  # LP column of each HiGHS column
+    warm_start: bool = False  # True when HiGHS started from a given basis
+    basis: tuple[np.ndarray, np.ndarray] | None = field(repr=False, default=None)  # kept when asked for
 
 
 def highs_options_for(method: str, n_rows: int) -> dict:
@@ -92,82 +92,63 @@ def highs_options_for(method: str, n_rows: int) -> dict:
     raise SolverError(f"solver method {method!r} is not one of {list(METHODS)}.")
 
 
-def handoff(handles: PyomoHandles, n_rows: int, n_cols: int):
-    """Compile the Pyomo model to standard form and fill a HighsLp; return it with the row and column maps.
+def highs_lp(lp: LinearProgram) -> highspy.HighsLp:
+    """The HiGHS model of the array LP, column by column (CSC), in the LP's own row and column order."""
+    matrix, row_lower, row_upper = lp.matrix()
+    col_lower, col_upper = lp.column_bounds()
+    csc = matrix.tocsc()
+    model = highspy.HighsLp()
+    model.num_col_, model.num_row_ = int(matrix.shape[1]), int(matrix.shape[0])
+    model.col_cost_ = lp.cost_vector()
+    model.col_lower_ = col_lower
+    model.col_upper_ = col_upper
+    model.row_lower_ = row_lower
+    model.row_upper_ = row_upper
+    model.a_matrix_.format_ = highspy.MatrixFormat.kColwise
+    model.a_matrix_.start_ = csc.indptr
+    model.a_matrix_.index_ = csc.indices
+    model.a_matrix_.value_ = csc.data
+    return model
 
-    The compiler is given the ``Var`` components (one per block, in LP order) as its column order: it then keeps the
-    LP's column order without a per-variable look-up. Rows come out in the order the ``Constraint`` components were
-    declared, which is the LP's row order; both orders are checked object by object (identity), and only if they
-    differ (a row or column dropped, e.g. an empty row) are the maps built by look-up."""
-    with PauseGC():  # the compiler makes a few objects per row; no cyclic GC passes while it runs
-        compiled = LinearStandardFormCompiler().write(
-            handles.model, mixed_form=True, column_order=handles.var_components or handles.variables
-        )
-        return _fill_highs_lp(handles, compiled)
+
+def highs_basis(arrays: tuple[np.ndarray, np.ndarray]) -> highspy.HighsBasis:
+    """A HiGHS basis from column and row status arrays (as :func:`basis_arrays` returns them)."""
+    basis = highspy.HighsBasis()
+    status = highspy.HighsBasisStatus
+    basis.col_status = [status(int(v)) for v in arrays[0]]
+    basis.row_status = [status(int(v)) for v in arrays[1]]
+    basis.valid = True
+    return basis
 
 
-def _fill_highs_lp(handles: PyomoHandles, compiled):
-    """The HighsLp of a compiled standard form, with the row and column maps (see handoff)."""
-    columns = compiled.columns
-    if len(columns) == len(handles.variables) and all(
-        a is b for a, b in zip(columns, handles.variables, strict=True)
-    ):
-        col_map = np.arange(len(columns), dtype=np.int64)
-    else:
-        position = {id(v): i for i, v in enumerate(handles.variables)}
-        col_map = np.fromiter((position[id(v)] for v in columns), dtype=np.int64, count=len(columns))
-    row_cons = [c for c, _ in compiled.rows]
-    if len(row_cons) == len(handles.constraints) and all(
-        a is b for a, b in zip(row_cons, handles.constraints, strict=True)
-    ):
-        row_map = np.arange(len(row_cons), dtype=np.int64)
-    else:
-        row_position = {id(c): i for i, c in enumerate(handles.constraints)}
-        row_map = np.fromiter((row_position[id(c)] for c in row_cons), dtype=np.int64, count=len(row_cons))
-    senses = np.fromiter((s for _, s in compiled.rows), dtype=np.int64, count=len(compiled.rows))
-
-    # mixed form: sense 1 is "<= rhs", 0 is "== rhs", -1 is ">= rhs" (coefficients as written)
-    A = compiled.A.tocsc()
-    rhs = np.asarray(compiled.rhs, dtype=float)
-    lower = np.where(senses <= 0, rhs, -math.inf)
-    upper = np.where(senses >= 0, rhs, math.inf)
-
-    lp = highspy.HighsLp()
-    lp.num_col_ = len(columns)
-    lp.num_row_ = len(compiled.rows)
-    cost = np.asarray(compiled.c.todense()).ravel() if compiled.c.shape[0] else np.zeros(lp.num_col_)
-    lp.col_cost_ = cost
-    bounds = [v.bounds for v in columns]
-    lp.col_lower_ = np.fromiter(
-        (-math.inf if b[0] is None else b[0] for b in bounds), dtype=float, count=len(bounds)
+def basis_arrays(h: highspy.Highs) -> tuple[np.ndarray, np.ndarray]:
+    """The column and row statuses of HiGHS's current basis, as small integer arrays (kept between solves)."""
+    basis = h.getBasis()
+    return (
+        np.array([int(v) for v in basis.col_status], dtype=np.int8),
+        np.array([int(v) for v in basis.row_status], dtype=np.int8),
     )
-    lp.col_upper_ = np.fromiter(
-        (math.inf if b[1] is None else b[1] for b in bounds), dtype=float, count=len(bounds)
-    )
-    lp.row_lower_ = lower
-    lp.row_upper_ = upper
-    lp.a_matrix_.format_ = highspy.MatrixFormat.kColwise
-    lp.a_matrix_.start_ = A.indptr
-    lp.a_matrix_.index_ = A.indices
-    lp.a_matrix_.value_ = A.data
-    lp.offset_ = float(compiled.c_offset[0]) if len(compiled.c_offset) else 0.0
-    return lp, col_map, row_map
 
 
-def solve_highs(
-    handles: PyomoHandles, n_rows: int, n_cols: int, options: SolverOptions, release_model: bool = True
+def solve_lp(
+    lp: LinearProgram,
+    options: SolverOptions,
+    *,
+    basis: tuple[np.ndarray, np.ndarray] | None = None,
+    keep_basis: bool = False,
 ) -> Solution:
-    """Hand the model to HiGHS and solve it. With ``release_model`` (the default) the Pyomo model in ``handles`` is
-    released once HiGHS holds the LP (``handles.release()``), which lowers the peak memory of a run; pass False to
-    keep using the Pyomo model afterwards."""
+    """Solve the array LP with HiGHS: the one solve path of pathcast (runs, analyses and ensemble members).
+
+    ``basis`` (column and row statuses of an earlier optimum of an LP of the same shape) warm-starts dual simplex;
+    with a basis the method is simplex whatever ``options.method`` says. ``keep_basis`` returns the optimal basis in
+    ``Solution.basis`` for later warm starts. The status is not checked here: see
+    :func:`pathcast.pipeline.check_optimal`."""
     started = time.perf_counter()
-    try:
-        lp, col_map, row_map = handoff(handles, n_rows, n_cols)
-    finally:
-        if release_model:
-            handles.release()  # also undoes the build's gc.freeze(), on success or failure
+    model = highs_lp(lp)
     h = new_highs(log=options.log)
-    highs_opts = highs_options_for(options.method, lp.num_row_)
+    warm = basis is not None and (len(basis[0]), len(basis[1])) == (model.num_col_, model.num_row_)
+    method = "simplex" if warm else options.method
+    highs_opts = highs_options_for(method, model.num_row_)
     if options.time_limit_s:
         highs_opts["time_limit"] = float(options.time_limit_s)
     if options.threads:
@@ -180,7 +161,9 @@ def solve_highs(
                 f"solver options: got {key!r} = {value!r}; expected a HiGHS option name and a value HiGHS accepts "
                 "(check them with 'pathcast check')."
             )
-    h.passModel(lp)
+    h.passModel(model)
+    if warm:
+        warm = h.setBasis(highs_basis(basis)) == highspy.HighsStatus.kOk
     if int(h.getOptionValue("threads")[1]) != 0:
         # HiGHS keeps one thread scheduler per process, sized by the first solve; a solve that asks for another
         # number of threads is refused (status "not set") until that scheduler is reset. pathcast solves one LP at
@@ -190,39 +173,38 @@ def solve_highs(
     started = time.perf_counter()
     h.run()
     solve_s = time.perf_counter() - started
-    model_status = h.getModelStatus()
-    status = _status_name(model_status)
+    status = _status_name(h.getModelStatus())
     info = h.getInfo()
     iterations = {
         "simplex": int(info.simplex_iteration_count),
         "ipm": int(info.ipm_iteration_count),
         "crossover": int(info.crossover_iteration_count),
     }
-    x = np.zeros(n_cols)
-    duals = np.zeros(n_rows)
+    x = np.zeros(model.num_col_)
+    duals = np.zeros(model.num_row_)
     objective = math.nan
     if status == "optimal":
         sol = h.getSolution()
-        x[col_map] = np.asarray(sol.col_value)
+        x = np.asarray(sol.col_value, dtype=float)
         if sol.dual_valid:
-            duals[row_map] = np.asarray(sol.row_dual)
+            duals = np.asarray(sol.row_dual, dtype=float)
         objective = float(info.objective_function_value)
     return Solution(
         status=status,
         objective=objective,
         x=x,
         row_dual=duals,
-        method=options.method,
+        method=method,
         options=highs_opts,
         handoff_s=handoff_s,
         solve_s=solve_s,
-        rows=lp.num_row_,
-        columns=lp.num_col_,
-        nonzeros=len(lp.a_matrix_.value_),
+        rows=model.num_row_,
+        columns=model.num_col_,
+        nonzeros=len(model.a_matrix_.value_),
         iterations=iterations,
         highs=h,
-        row_map=row_map,
-        col_map=col_map,
+        warm_start=bool(warm),
+        basis=basis_arrays(h) if keep_basis and status == "optimal" else None,
     )
 
 
@@ -255,8 +237,8 @@ def find_conflict(solution: Solution, time_limit_s: float = CONFLICT_TIME_LIMIT_
     if h is None:
         return Conflict("unknown")
     MS = highspy.HighsModelStatus
-    row_map = solution.row_map if solution.row_map is not None else np.arange(h.getNumRow())
-    col_map = solution.col_map if solution.col_map is not None else np.arange(h.getNumCol())
+    row_map = np.arange(h.getNumRow())  # HiGHS holds the LP in its own order
+    col_map = np.arange(h.getNumCol())
     h.setOptionValue("iis_time_limit", float(time_limit_s))
     strategies = (int(highspy.IisStrategy.kIisStrategyLight), int(highspy.IisStrategy.kIisStrategyFromLp))
     for strategy in strategies:

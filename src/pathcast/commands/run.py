@@ -28,6 +28,14 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
         help="HiGHS algorithm (overrides the scenario's solver.method)",
     )
     parser.add_argument("--time-limit", type=float, default=None, help="HiGHS time limit [s]")
+    parser.add_argument(
+        "--extension",
+        action="append",
+        default=[],
+        metavar="FILE[:FUNCTION]",
+        help="a Python file whose function (default 'extend') adds your own rules to the model, after the "
+        "scenario's own extensions (README, Extensions); repeatable",
+    )
     parser.add_argument("--solver-log", action="store_true", help="show HiGHS's own log")
     parser.add_argument("--profile", action="store_true", help="print stage times and the LP size")
     parser.add_argument("--no-parquet", action="store_true", help="skip Parquet files")
@@ -56,6 +64,7 @@ def execute(args: argparse.Namespace) -> int:
     from ..pipeline import run_scenario
     from ..report.console import render_profile, render_summary
     from ..results.folders import refuse_unsafe_target
+    from ..scenario.extensions import parse_extension_argument
     from ..results.writers import write_result
 
     solver = {"method": args.method, "time_limit_s": args.time_limit, "log": args.solver_log}
@@ -82,7 +91,13 @@ def execute(args: argparse.Namespace) -> int:
         return inputs
 
     try:
-        run = run_scenario(args.file, progress=progress, solver=solver, inputs_hook=hook)
+        run = run_scenario(
+            args.file,
+            progress=progress,
+            solver=solver,
+            inputs_hook=hook,
+            extensions=[parse_extension_argument(text) for text in args.extension],
+        )
     except InfeasibleError:
         inputs = captured.get("inputs")
         if inputs is None or inputs.budget_mt is None or overshoot_price is not None:

@@ -230,7 +230,6 @@ def _member_row(member: dict, record: dict, inputs: dict, reference: float | Non
                 )
             )
     solver = record.get("solver") or {}
-    row["solve_path"] = solver.get("path", "")
     row["warm_start"] = solver.get("warm_start")
     row["simplex_iterations"] = (solver.get("iterations") or {}).get("simplex")
     times = record.get("times") or {}

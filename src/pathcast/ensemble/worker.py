@@ -1,50 +1,39 @@
 """Solve one member inside a worker process and send back only a compact, JSON-ready record (headline figures,
 yearly emissions, capacity by technology and year, carbon price path, times) -- never a model object.
 
-Fast re-solves. Members share the LP's structure: when a member's constraint matrix equals the base scenario's (only
-costs, column bounds and row bounds differ -- prices, capex, learning rates, demand, budgets), the worker reuses the
-base's HiGHS model built once per worker process (:class:`BaseTemplate`: the base LP through
-``build_linear_program`` -> ``to_pyomo`` -> ``solve.handoff``) and only replaces its cost and bound arrays, skipping
-the Pyomo model and the standard-form hand-off. Each member then starts the dual simplex from the base scenario's
-optimal basis (``Highs.setBasis``). Every member starts from the same base basis in a fresh ``Highs`` instance, so
-its result does not depend on which worker solved it or in what order. A member whose matrix differs is rebuilt
-through Pyomo and, when the dimensions agree, still warm-started.
-
-This repeats the few lines of :func:`pathcast.solve.solve_highs` that set options and read the solution, because
-that function has no way to pass a basis in; the maths (LP, hand-off, extraction) is the project's own.
+Every member goes through the project's one solve path (:func:`pathcast.solve.solve_lp` on the member's own array LP,
+then :func:`pathcast.pipeline.check_optimal`), warm-started from the base scenario's optimal basis when the member's
+LP has the base's dimensions: dual simplex then starts from that basis (``Highs.setBasis``). Every member starts from
+the same base basis in a fresh ``Highs`` instance, so its result does not depend on which worker solved it or in what
+order.
 """
 
 from __future__ import annotations
 
 import copy
-import math
 import time
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 from typing import Any
 
-import highspy
 import numpy as np
 
-from ..errors import InfeasibleError, PathcastError, ScenarioError, SolverError
+from ..errors import PathcastError, ScenarioError
 from ..model.build import build_linear_program
-from ..model.pyomo_model import to_pyomo
-from ..pipeline import solver_options_from
+from ..pipeline import check_optimal, solver_options_from
 from ..results.extract import extract_tables, headline_figures
 from ..scenario.inputs import prepare_inputs
 from ..scenario.loader import load_scenario_mapping
 from ..scenario.plausibility import check_inputs
-from ..solve import Solution, SolverOptions, _status_name, handoff, highs_options_for, new_highs
+from ..solve import solve_lp
 from .members import Override, apply_overrides
 from .validity import member_error
 
 __all__ = [
     "SharedContext",
     "MemberTask",
-    "BaseTemplate",
     "solve_member",
     "solve_base",
     "compact_result",
-    "basis_arrays",
     "MEMBER_THREADS",
 ]
 
@@ -71,101 +60,6 @@ class MemberTask:
     hash: str
     samples: dict[str, Any]
     overrides: tuple[Override, ...]
-
-
-class BaseTemplate:
-    """The base scenario's HiGHS model in standard form, kept per worker process and reused by every member whose
-    constraint matrix is the same."""
-
-    def __init__(self, context: SharedContext):
-        loaded = load_scenario_mapping(
-            copy.deepcopy(context.base_raw),
-            context.base_path,
-            provenance=context.provenance,
-            files=context.files,
-        )
-        model = build_linear_program(prepare_inputs(loaded.scenario))
-        matrix, row_lower, row_upper = model.lp.matrix()
-        handles = to_pyomo(model.lp)
-        self.lp, self.col_map, self.row_map = handoff(handles, *matrix.shape)
-        self.shape = matrix.shape
-        self.indptr, self.indices, self.data = matrix.indptr.copy(), matrix.indices.copy(), matrix.data.copy()
-        self.lower_finite, self.upper_finite = np.isfinite(row_lower), np.isfinite(row_upper)
-        self.equal = row_lower == row_upper
-        self.highs_lower_finite = np.isfinite(np.asarray(self.lp.row_lower_))
-        self.highs_upper_finite = np.isfinite(np.asarray(self.lp.row_upper_))
-        self.unmapped = np.ones(matrix.shape[1], dtype=bool)
-        self.unmapped[self.col_map] = False
-        self.basis = _highs_basis(context.basis) if context.basis is not None else None
-
-    def adapt(self, lp_arrays) -> tuple[Any, np.ndarray, np.ndarray] | None:
-        """The base HiGHS model with this member's costs and bounds, or None when the member's structure differs."""
-        lp, matrix, row_lower, row_upper = lp_arrays
-        if matrix.shape != self.shape or not (
-            np.array_equal(matrix.indptr, self.indptr)
-            and np.array_equal(matrix.indices, self.indices)
-            and np.array_equal(matrix.data, self.data)
-        ):
-            return None
-        if not (
-            np.array_equal(np.isfinite(row_lower), self.lower_finite)
-            and np.array_equal(np.isfinite(row_upper), self.upper_finite)
-            and np.array_equal(row_lower == row_upper, self.equal)
-        ):
-            return None
-        cost = lp.cost_vector()
-        if np.any(cost[self.unmapped] != 0):
-            return None
-        col_lower, col_upper = lp.column_bounds()
-        hl = self.lp
-        hl.col_cost_ = cost[self.col_map]
-        hl.col_lower_ = col_lower[self.col_map]
-        hl.col_upper_ = col_upper[self.col_map]
-        hl.row_lower_ = np.where(self.highs_lower_finite, row_lower[self.row_map], -math.inf)
-        hl.row_upper_ = np.where(self.highs_upper_finite, row_upper[self.row_map], math.inf)
-        return hl, self.col_map, self.row_map
-
-
-_TEMPLATES: dict[str, BaseTemplate] = {}
-
-
-def _template(context: SharedContext) -> BaseTemplate:
-    template = _TEMPLATES.get(context.base_hash)
-    if template is None:
-        _TEMPLATES.clear()  # one ensemble at a time per worker
-        template = _TEMPLATES[context.base_hash] = BaseTemplate(context)
-    return template
-
-
-def _highs_basis(arrays: tuple[np.ndarray, np.ndarray]):
-    basis = highspy.HighsBasis()
-    status = highspy.HighsBasisStatus
-    basis.col_status = [status(int(v)) for v in arrays[0]]
-    basis.row_status = [status(int(v)) for v in arrays[1]]
-    basis.valid = True
-    return basis
-
-
-def basis_arrays(h) -> tuple[np.ndarray, np.ndarray]:
-    basis = h.getBasis()
-    return (
-        np.array([int(v) for v in basis.col_status], dtype=np.int8),
-        np.array([int(v) for v in basis.row_status], dtype=np.int8),
-    )
-
-
-def _options(options: SolverOptions, n_rows: int, warm: bool) -> dict:
-    opts = highs_options_for("simplex" if warm else options.method, n_rows)
-    if options.time_limit_s:
-        opts["time_limit"] = float(options.time_limit_s)
-    if options.threads:
-        opts["threads"] = int(options.threads)
-    elif _in_dask_worker():
-        # one HiGHS thread per worker process; not in a serial run, where HiGHS's thread pool may already run with
-        # more threads from an earlier solve in the same process and would refuse a smaller count
-        opts["threads"] = MEMBER_THREADS
-    opts.update(options.options)
-    return opts
 
 
 def _in_dask_worker() -> bool:
@@ -205,85 +99,30 @@ def _solve(context: SharedContext, task: MemberTask, *, warm_start: bool, keep_b
                 raise
             raise member_error(context.ensemble_file, context.input_paths, task.samples, error) from None
         model = build_linear_program(inputs)
-        matrix, row_lower, row_upper = model.lp.matrix()
         lap("build_lp_s")
         options = solver_options_from(inputs)
-        template = _template(context) if warm_start and context.basis is not None else None
-        adapted = template.adapt((model.lp, matrix, row_lower, row_upper)) if template is not None else None
-        if adapted is not None:
-            hl, col_map, row_map = adapted
-            path = "in_place"
-        else:
-            hl, col_map, row_map = handoff(to_pyomo(model.lp), *matrix.shape)
-            path = "rebuilt"
-        basis = None
-        if (
-            template is not None
-            and template.basis is not None
-            and (hl.num_col_, hl.num_row_) == (len(template.basis.col_status), len(template.basis.row_status))
-        ):
-            basis = template.basis
-        h = new_highs(log=options.log)
-        highs_opts = _options(options, hl.num_row_, warm=basis is not None)
-        for key, value in highs_opts.items():
-            if h.setOptionValue(key, value) == highspy.HighsStatus.kError:
-                raise SolverError(f"HiGHS option {key!r} = {value!r} was refused; see the HiGHS option list.")
-        h.passModel(hl)
-        warm = basis is not None and h.setBasis(basis) == highspy.HighsStatus.kOk
-        lap("handoff_s")
-        h.run()
-        lap("solve_s")
-        status = _status_name(h.getModelStatus())
-        info = h.getInfo()
-        iterations = {
-            "simplex": int(info.simplex_iteration_count),
-            "ipm": int(info.ipm_iteration_count),
-            "crossover": int(info.crossover_iteration_count),
-        }
+        if options.threads is None and _in_dask_worker():
+            # one HiGHS thread per worker process; not in a serial run, where HiGHS's thread pool may already run
+            # with more threads from an earlier solve in the same process
+            options = replace(options, threads=MEMBER_THREADS)
+        basis = context.basis if warm_start else None
+        solution = solve_lp(model.lp, options, basis=basis, keep_basis=keep_basis)
+        times["handoff_s"] = round(solution.handoff_s, 6)
+        times["solve_s"] = round(solution.solve_s, 6)
+        clock = time.perf_counter()
         record["solver"] = {
-            "status": status,
-            "path": path,
-            "warm_start": bool(warm),
-            "method": "simplex" if basis is not None else options.method,
-            "iterations": iterations,
+            "status": solution.status,
+            "warm_start": solution.warm_start,
+            "method": solution.method,
+            "iterations": solution.iterations,
         }
-        if status != "optimal":
-            if status in ("infeasible", "unbounded_or_infeasible"):
-                raise InfeasibleError(
-                    f"scenario {inputs.name!r}: HiGHS reports the model {status.replace('_', ' ')}: the carbon budget, "
-                    "caps, clean-electricity share, minimum builds and phase-outs cannot all be met together.",
-                    diagnosis={"status": status},
-                )
-            raise SolverError(
-                f"scenario {inputs.name!r}: HiGHS stopped with status {status!r} after "
-                f"{times['solve_s']:.1f} s; try another solver method or a longer time limit."
-            )
-        sol = h.getSolution()
-        x = np.zeros(matrix.shape[1])
-        x[col_map] = np.asarray(sol.col_value)
-        duals = np.zeros(matrix.shape[0])
-        if sol.dual_valid:
-            duals[row_map] = np.asarray(sol.row_dual)
-        solution = Solution(
-            status=status,
-            objective=float(info.objective_function_value),
-            x=x,
-            row_dual=duals,
-            method=record["solver"]["method"],
-            options=highs_opts,
-            handoff_s=times["handoff_s"],
-            solve_s=times["solve_s"],
-            rows=hl.num_row_,
-            columns=hl.num_col_,
-            nonzeros=len(hl.a_matrix_.value_),
-            iterations=iterations,
-        )
+        check_optimal(model, solution, f"scenario {inputs.name!r}")
         tables = extract_tables(model, solution)
         summary = headline_figures(model, solution, tables)
         record.update(compact_result(tables, summary))
         record["status"] = "solved"
-        if keep_basis:
-            record["_basis"] = basis_arrays(h)
+        if keep_basis and solution.basis is not None:
+            record["_basis"] = solution.basis
         lap("extract_s")
     except Exception as error:  # a failed member is recorded with its reason; the others go on
         record["status"] = "failed"

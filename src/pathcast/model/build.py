@@ -1,4 +1,4 @@
-"""Assemble the pathway LP from its constraint families, then (optionally) as a Pyomo model."""
+"""Assemble the pathway LP from its constraint families, then the rules of any extensions."""
 
 from __future__ import annotations
 
@@ -44,8 +44,13 @@ def build_linear_program(inputs: ModelInputs) -> PathwayModel:
     add_electricity_balance(ctx)
     add_emissions(ctx)
     add_policy(ctx)
+    model = PathwayModel(ctx)
+    if inputs.extensions:  # users' rules in Pyomo, compiled into rows of this LP (imports Pyomo only then)
+        from .extension import apply_extensions
+
+        apply_extensions(model, inputs.extensions)
     apply_column_bounds(ctx.lp, inputs.column_bounds)
-    return PathwayModel(ctx)
+    return model
 
 
 def apply_column_bounds(lp: LinearProgram, bounds: dict[str, tuple[np.ndarray, np.ndarray]]) -> None:

@@ -15,6 +15,7 @@ from .build import PathwayModel
 from .capacity import CapacityValues, read_capacity
 from .dispatch import DispatchValues, read_dispatch
 from .emissions import EmissionsValues, read_emissions
+from .extension import read_extension_rows
 from .fuels import FuelValues, read_fuels
 from .policy import PolicyValues, read_policy
 from .storage import StorageValues, read_storage
@@ -39,6 +40,8 @@ class SolutionValues:
     fuels: FuelValues
     emissions: EmissionsValues
     policy: PolicyValues
+    # one record per row an extension added (pathcast.model.extension.read_extension_rows); empty without extensions
+    extension_rows: tuple[dict, ...] = ()
 
 
 def read_solution(model: PathwayModel, solution: Solution) -> SolutionValues:
@@ -53,4 +56,5 @@ def read_solution(model: PathwayModel, solution: Solution) -> SolutionValues:
         fuels=read_fuels(ctx, x, row_dual),
         emissions=read_emissions(ctx, x),
         policy=read_policy(ctx, x, row_dual),
+        extension_rows=tuple(read_extension_rows(model, x, row_dual)) if ctx.extension_rows else (),
     )

@@ -58,12 +58,12 @@ def render_profile(result: RunResult) -> str:
     solver = m.get("solver", {})
     total = times.get("total_s", 0.0) or 1e-12
     lines = ["Stage times [s]"]
-    for key in ("load_s", "build_lp_s", "build_pyomo_s", "handoff_s", "solve_s", "extract_s", "total_s"):
+    for key in ("load_s", "build_lp_s", "handoff_s", "solve_s", "extract_s", "total_s"):
         if key in times:
             share = "" if key == "total_s" else f"{100.0 * times[key] / total:>7.1f} %"
             lines.append(f"  {key[:-2].replace('_', ' '):<16}{times[key]:>10.3f}{share}")
     rows = lp.get("rows", 0) or 1
-    overhead = sum(times.get(k, 0.0) for k in ("build_lp_s", "build_pyomo_s", "handoff_s", "extract_s"))
+    overhead = sum(times.get(k, 0.0) for k in ("build_lp_s", "handoff_s", "extract_s"))
     coef = lp.get("coefficient_range", {})
     lines.append(
         f"LP: {lp.get('rows', 0):,} rows, {lp.get('columns', 0):,} columns, {lp.get('nonzeros', 0):,} nonzeros; "

@@ -384,6 +384,7 @@ def tables_from_values(values: SolutionValues) -> dict[str, pd.DataFrame]:
     fuel_flows, fuel_supply, fuel_demand = fuel_tables(values)
     emissions, emissions_total = emissions_tables(values)
     electricity_price, fuel_price, carbon_price = price_tables(values)
+    extension = {"extension_constraints": extension_table(values)} if values.extension_rows else {}
     return {
         "capacity": capacity,
         "storage_energy": storage_energy,
@@ -399,7 +400,15 @@ def tables_from_values(values: SolutionValues) -> dict[str, pd.DataFrame]:
         "fuel_price": fuel_price,
         "carbon_price": carbon_price,
         "lcoe": lcoe_table(values, capacity, electricity, fuel_price),
+        **extension,
     }
+
+
+def extension_table(values: SolutionValues) -> pd.DataFrame:
+    """The rows users' extensions added: bounds, value at the optimum, whether each binds and its dual [million
+    currency of the price year, discounted, per unit of the row as written]."""
+    columns = ["constraint", "index", "lower", "upper", "activity", "dual_million_per_unit", "binding"]
+    return pd.DataFrame(list(values.extension_rows), columns=columns)
 
 
 def extract_tables(model: PathwayModel, solution: Solution) -> dict[str, pd.DataFrame]:

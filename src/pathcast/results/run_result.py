@@ -32,7 +32,7 @@ from typing import Any
 
 import pandas as pd
 
-__all__ = ["RunResult", "TABLES"]
+__all__ = ["RunResult", "TABLES", "OPTIONAL_TABLES"]
 
 TABLES = (
     "capacity",
@@ -50,6 +50,8 @@ TABLES = (
     "carbon_price",
     "lcoe",
 )
+# tables a run has only when it uses them: the rows of users' extensions (README, Extensions)
+OPTIONAL_TABLES = ("extension_constraints",)
 
 
 @dataclass(frozen=True)

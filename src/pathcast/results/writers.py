@@ -12,7 +12,7 @@ import pandas as pd
 
 from ..errors import ScenarioError
 from .folders import atomic_folder
-from .run_result import TABLES, RunResult
+from .run_result import OPTIONAL_TABLES, TABLES, RunResult
 
 __all__ = ["write_result", "read_result", "atomic_folder", "spreadsheet_safe", "FORMULA_STARTS"]
 
@@ -71,16 +71,16 @@ def write_result(result: RunResult, folder: Path, *, parquet: bool = True, excel
     """Write every table as CSV (and Parquet), an Excel workbook of the yearly tables, summary.json and manifest.json."""
     folder = Path(folder)
     with atomic_folder(folder, kind="result") as tmp:
-        shown = {
-            name: spreadsheet_safe(result.tables[name]) for name in TABLES
-        }  # CSV and Excel; Parquet keeps raw text
-        for name in TABLES:
+        names = [*TABLES, *(n for n in OPTIONAL_TABLES if n in result.tables)]
+        # CSV and Excel get spreadsheet-safe text; Parquet keeps the raw text
+        shown = {name: spreadsheet_safe(result.tables[name]) for name in names}
+        for name in names:
             shown[name].to_csv(tmp / f"{name}.csv", index=False)
             if parquet:
                 result.tables[name].to_parquet(tmp / f"{name}.parquet", index=False)
         if excel:
             with pd.ExcelWriter(tmp / "results.xlsx", engine="openpyxl") as book:
-                for name in TABLES:
+                for name in names:
                     frame = shown[name]
                     if len(frame) <= EXCEL_ROW_LIMIT:
                         frame.to_excel(book, sheet_name=name[:31], index=False)
@@ -101,8 +101,10 @@ def read_result(folder: Path) -> RunResult:
             file=str(folder),
         )
     tables = {}
-    for name in TABLES:
+    for name in (*TABLES, *OPTIONAL_TABLES):
         path = folder / f"{name}.csv"
+        if name in OPTIONAL_TABLES and not path.is_file():
+            continue
         if not path.is_file():
             raise ScenarioError(
                 f"{folder}: {name}.csv: got no such file; expected every table of a pathcast result folder.",

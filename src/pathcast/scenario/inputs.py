@@ -13,6 +13,7 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from ..economics import capital_recovery_factor, discount_factors
+from .extensions import ExtensionSpec
 from .learning import capex_path
 from .schema import ELECTRICITY, CapexPath, Scenario
 
@@ -151,6 +152,9 @@ class ModelInputs:
     column_bounds: dict[str, tuple[np.ndarray, np.ndarray]] = field(default_factory=dict)
     # budget_overshoot_price [currency/tCO2]: when set, the carbon budget row gets a priced overshoot column (policy).
     budget_overshoot_price: float | None = None
+    # extensions: users' rules (pathcast.model.extension), applied to every LP built from these inputs, so that
+    # analyses and ensemble members that re-solve a variant keep them; set by pathcast.pipeline.run_scenario.
+    extensions: tuple[ExtensionSpec, ...] = ()
 
     @property
     def hours(self) -> int:
