@@ -51,8 +51,6 @@ SLOW_ENSEMBLE = range(1035, 1135)
 
 # case ids that still fail; they are being fixed in src/ (see the fuzz report), marked xfail(strict=False)
 KNOWN_FAILURES: set[str] = {
-    # sampling a very wide lognormal prints numpy's "RuntimeWarning: overflow encountered in exp" before the message
-    "lognormal-sigma-1e10",
     # an empty reference.yaml is reported as missing fields of budget.yaml, which extends it
     "empty-parent",
     "scenario-200",
