@@ -3,10 +3,13 @@
 For each size (years x representative hours x technologies) a synthetic scenario is generated
 (benchmarks/scenario_generator.py) and measured side by side in one run:
 
-- pathcast, end to end, in its own subprocess: (a) scenario load + validation, (b) model build (array LP, then
-  Pyomo), (c) hand-off to HiGHS, (d) HiGHS solve, (e) results extraction, (f) peak memory (``ru_maxrss``);
+- pathcast, end to end, in its own subprocess: (a) scenario load + validation, (b) the array LP
+  (``build_linear_program``, with the extensions' rules if any, and ``LinearProgram.matrix()``), (c) the hand-off to
+  HiGHS (``highs_lp`` + options + ``passModel``, inside ``solve_lp``), (d) HiGHS solve, (e) results extraction,
+  (f) peak memory (VmHWM);
 - the reference path: the same LP, written once to MPS by pathcast (``writeModel`` after ``passModel``), read and
-  solved by a fresh ``highspy`` alone with the same options, in its own subprocess (the floor: bare read + solve);
+  solved by a fresh ``highspy`` alone with the same options, in its own subprocess (the floor: bare read + solve).
+  Both paths end in the same HiGHS model, so pathcast's overhead is build LP + hand-off + extraction;
 - HiGHS with its default options on the same MPS file (for the speed-up of the strategy pathcast chooses);
 - optionally (``--methods``) every solver method on the same MPS file, with its duals compared to a vertex solution.
 
@@ -15,6 +18,7 @@ seconds is run once. Repeats alternate pathcast / bare / defaults so that the ma
 
     python benchmarks/run_benchmarks.py --sizes 6x48x20,12x96x20 --repeats 3
     python benchmarks/run_benchmarks.py --sizes 12x96x20 --methods simplex,ipm,ipm-crossover,pdlp --time-limit 600
+    python benchmarks/run_benchmarks.py --build-only --extension benchmarks/extension_rules.py:extend --repeats 3
 
 Results: JSON per run in ``--out`` (default benchmarks/out, git-ignored) and, with ``--write-results``, the report
 benchmarks/RESULTS.md.
@@ -79,7 +83,11 @@ def worker_pathcast(args: argparse.Namespace) -> dict:
     if args.prepare_only:
         return prepare_mps(args)
     started, cpu_started = time.perf_counter(), time.process_time()
-    run = run_scenario(args.scenario, solver={"method": args.method, "time_limit_s": args.time_limit})
+    run = run_scenario(
+        args.scenario,
+        solver={"method": args.method, "time_limit_s": args.time_limit},
+        extensions=_extension_specs(args),
+    )
     wall, cpu = time.perf_counter() - started, time.process_time() - cpu_started
     peak = _peak_rss_mb()
     sol = run.solution
@@ -109,17 +117,13 @@ def worker_pathcast(args: argparse.Namespace) -> dict:
         lp = h.getLp()
         out["ranges"] = _lp_ranges(lp)
         h.writeModel(str(args.write_mps))
-        # rows whose duals are checked: the carbon budget and the electricity balances, in HiGHS's row order
-        offsets = run.model.lp.row_offsets()
-        blocks = run.model.lp.row_blocks
-        # HiGHS's position of each LP row (the hand-off's row map, inverted; -1 for a row HiGHS never saw)
-        inverse = np.full(run.model.lp.matrix()[0].shape[0], -1, dtype=np.int64)
-        inverse[sol.row_map] = np.arange(len(sol.row_map))
+        # rows whose duals are checked: the carbon budget and the electricity balances (HiGHS holds the LP in the
+        # LP's own row order, so a row's position in the MPS file is its LP row number)
         budget = [int(offsets["carbon_budget"])] if "carbon_budget" in blocks else []
-        balance = (offsets["electricity_balance"] + np.arange(blocks["electricity_balance"].size)).tolist()
+        balance = balance.tolist()
         checked = {
-            "carbon_budget": [int(inverse[i]) for i in budget],
-            "electricity_balance": [int(inverse[i]) for i in balance],
+            "carbon_budget": budget,
+            "electricity_balance": balance,
             "reference_duals": {
                 "carbon_budget": [float(sol.row_dual[i]) for i in budget],
                 "electricity_balance": [float(sol.row_dual[i]) for i in balance],
@@ -129,49 +133,56 @@ def worker_pathcast(args: argparse.Namespace) -> dict:
     return out
 
 
+def _extension_specs(args: argparse.Namespace) -> tuple:
+    """The ``--extension FILE[:function]`` of the benchmark, as the command line's ``--extension`` reads it."""
+    if not getattr(args, "extension", None):
+        return ()
+    from pathcast.scenario.extensions import parse_extension_argument
+
+    spec = parse_extension_argument(args.extension)
+    return (type(spec)(Path(spec.file).resolve(), spec.function, spec.origin),)
+
+
 def prepare_mps(args: argparse.Namespace) -> dict:
-    """Build the LP through pathcast's own path (load, array LP, Pyomo, hand-off), pass it to HiGHS and write the
-    MPS file and the positions of the checked rows, without solving (for --concurrent)."""
+    """Build the LP through pathcast's own path (load, array LP, ``highs_lp``), pass it to HiGHS and write the MPS
+    file and the positions of the checked rows, without solving (for --concurrent)."""
     import numpy as np
 
     from pathcast.model.build import build_linear_program
-    from pathcast.model.pyomo_model import to_pyomo
     from pathcast.scenario.inputs import prepare_inputs
     from pathcast.scenario.loader import load_scenario
-    from pathcast.solve import handoff, new_highs
+    from pathcast.solve import highs_lp, new_highs
 
     model = build_linear_program(prepare_inputs(load_scenario(args.scenario).scenario))
-    matrix, _, _ = model.lp.matrix()
-    lp, _, row_map = handoff(to_pyomo(model.lp), *matrix.shape)
+    lp = highs_lp(model.lp)
     h = new_highs()
     h.passModel(lp)
     h.writeModel(str(args.write_mps))
-    inverse = np.full(matrix.shape[0], -1, dtype=np.int64)
-    inverse[row_map] = np.arange(len(row_map))
     offsets, blocks = model.lp.row_offsets(), model.lp.row_blocks
     budget = [int(offsets["carbon_budget"])] if "carbon_budget" in blocks else []
     balance = (offsets["electricity_balance"] + np.arange(blocks["electricity_balance"].size)).tolist()
-    checked = {
-        "carbon_budget": [int(inverse[i]) for i in budget],
-        "electricity_balance": [int(inverse[i]) for i in balance],
-    }
+    checked = {"carbon_budget": budget, "electricity_balance": balance}
     Path(str(args.write_mps) + ".rows.json").write_text(json.dumps(checked))
     return {"kind": "prepare", "rows": int(lp.num_row_), "ranges": _lp_ranges(lp)}
 
 
 def worker_build(args: argparse.Namespace) -> dict:
-    """Every pathcast stage except the solve, timed like the pipeline: load + validation, array LP, Pyomo, hand-off
-    (compile, fill HighsLp, set options, passModel, release the Pyomo model, as in ``solve_highs``) and results
-    extraction from an all-zero solution (the extraction's work does not depend on the values). Then the MPS file."""
+    """Every pathcast stage except the solve, timed like the pipeline: load + validation, the array LP (families,
+    then the extension's rules when ``--extension`` is given, then ``matrix()``), the hand-off (``highs_lp``, a HiGHS
+    instance, options, ``passModel``, as in ``solve_lp``) and results extraction from an all-zero solution (the
+    extraction's work does not depend on the values). Then the MPS file.
+
+    With an extension, ``build_lp_s`` is what the pipeline would count (families + Pyomo import + rules + matrix);
+    ``families_s``, ``pyomo_import_s``, ``extensions_s`` (``apply_extensions``: the labelled Pyomo model, the user's
+    function, the compilation into LP rows) and ``matrix_s`` are its parts."""
     import numpy as np
 
     from pathcast.model.build import build_linear_program
-    from pathcast.model.pyomo_model import to_pyomo
     from pathcast.pipeline import solver_options_from
     from pathcast.results.extract import extract_tables, headline_figures
     from pathcast.scenario.inputs import prepare_inputs
     from pathcast.scenario.loader import load_scenario
-    from pathcast.solve import Solution, handoff, highs_options_for, new_highs
+    from pathcast.solve import Solution, highs_lp, highs_options_for, new_highs
 
     t, cpu = {}, {}
     clock, cpu_clock = time.perf_counter(), time.process_time()
@@ -185,13 +196,26 @@ def worker_build(args: argparse.Namespace) -> dict:
 
     inputs = prepare_inputs(load_scenario(args.scenario).scenario)
     lap("load_s")
-    model = build_linear_program(inputs)
+    model = build_linear_program(inputs)  # the families (the inputs carry no extension)
+    base_rows = int(sum(b.size for b in model.lp.row_blocks.values()))
+    lap("families_s")
+    specs = _extension_specs(args)
+    if specs:
+        import pyomo.environ  # noqa: F401  (what a run's first extension pays once)
+
+        lap("pyomo_import_s")
+        from pathcast.model.extension import apply_extensions
+
+        added = len(apply_extensions(model, specs))
+        lap("extensions_s")
     matrix, _, _ = model.lp.matrix()
-    lap("build_lp_s")
-    handles = to_pyomo(model.lp)
-    lap("build_pyomo_s")
-    lp, col_map, row_map = handoff(handles, *matrix.shape)
-    handles.release()
+    lap("matrix_s")
+    for d in (t, cpu):
+        d["build_lp_s"] = sum(
+            d.get(k, 0.0) for k in ("families_s", "pyomo_import_s", "extensions_s", "matrix_s")
+        )
+    clock, cpu_clock = time.perf_counter(), time.process_time()
+    lp = highs_lp(model.lp)
     h = new_highs()
     options = highs_options_for(solver_options_from(inputs).method, lp.num_row_)
     for key, value in options.items():
@@ -212,8 +236,6 @@ def worker_build(args: argparse.Namespace) -> dict:
         nonzeros=len(lp.a_matrix_.value_),
         iterations={},
         highs=h,
-        row_map=row_map,
-        col_map=col_map,
     )
     tables = extract_tables(model, solution)
     headline_figures(model, solution, tables)
@@ -221,15 +243,20 @@ def worker_build(args: argparse.Namespace) -> dict:
     peak = _peak_rss_mb()
     if args.write_mps:
         h.writeModel(str(args.write_mps))
-    return {
+    out = {
         "kind": "build",
         "times": t,
         "cpu_times": cpu,
         "peak_rss_mb": peak,
         "rows": int(lp.num_row_),
+        "base_rows": base_rows,
         "columns": int(lp.num_col_),
         "nonzeros": len(lp.a_matrix_.value_),
     }
+    if specs:
+        out["extension"] = args.extension
+        out["extension_rows"] = added
+    return out
 
 
 def worker_read(args: argparse.Namespace) -> dict:
@@ -243,8 +270,29 @@ def worker_read(args: argparse.Namespace) -> dict:
     return {"kind": "read", "read_s": time.perf_counter() - started, "peak_rss_mb": _peak_rss_mb()}
 
 
+def _overhead(times: dict) -> float:
+    """pathcast's work beyond the bare read + solve [s]: array LP, hand-off to HiGHS, results extraction."""
+    return times["build_lp_s"] + times["handoff_s"] + times["extract_s"]
+
+
+def _build_summary(builds: list[dict], base_rows: int) -> dict:
+    """Medians of --build-only runs of one case; per-row figures divide by the rows of the LP without extensions."""
+    times = {k: _median([b["times"][k] for b in builds]) for k in builds[0]["times"]}
+    cpu = {k: _median([b["cpu_times"][k] for b in builds]) for k in builds[0]["cpu_times"]}
+    return {
+        "runs": len(builds),
+        "times": times,
+        "cpu_times": cpu,
+        "overhead_s": _overhead(times),
+        "overhead_us_per_row": _overhead(times) * 1e6 / base_rows,
+        "cpu_overhead_us_per_row": _overhead(cpu) * 1e6 / base_rows,
+        "peak_rss_mb": _median([b["peak_rss_mb"] for b in builds]),
+    }
+
+
 def measure_build(sizes: list[str], args: argparse.Namespace) -> list[dict]:
-    """Stage times without the solve, median of --repeats, alternating with the bare read of the same LP."""
+    """Stage times without the solve, median of --repeats, alternating with the bare read of the same LP (and, with
+    --extension, with the same build plus the extension's rules)."""
     from scenario_generator import write_scenario
 
     rows = []
@@ -253,39 +301,49 @@ def measure_build(sizes: list[str], args: argparse.Namespace) -> list[dict]:
         scenario = write_scenario(out_dir / "scenarios", size, per_generator=args.per_generator)
         mps = out_dir / "mps" / (scenario.stem + ".build.mps")
         mps.parent.mkdir(parents=True, exist_ok=True)
-        builds, reads = [], []
+        builds, extended, reads = [], [], []
         for r in range(args.repeats):
             extra = ["--write-mps", str(mps)] if r == 0 else []
             builds.append(_run_worker(["--worker", "build", "--scenario", str(scenario), *extra]))
+            if args.extension:
+                extended.append(
+                    _run_worker(
+                        ["--worker", "build", "--scenario", str(scenario), "--extension", args.extension]
+                    )
+                )
             reads.append(_run_worker(["--worker", "read", "--mps", str(mps)]))
-        times = {k: _median([b["times"][k] for b in builds]) for k in builds[0]["times"]}
-        overhead = times["build_lp_s"] + times["build_pyomo_s"] + times["handoff_s"] + times["extract_s"]
-        cpu = {k: _median([b["cpu_times"][k] for b in builds]) for k in builds[0]["cpu_times"]}
-        cpu_overhead = cpu["build_lp_s"] + cpu["build_pyomo_s"] + cpu["handoff_s"] + cpu["extract_s"]
+        base_rows = builds[0]["rows"]
         row = {
             "size": size,
             "formulation": "per_generator" if args.per_generator else "pooled",
-            "rows": builds[0]["rows"],
+            "rows": base_rows,
             "columns": builds[0]["columns"],
-            "cpu_times": cpu,
-            "cpu_overhead_us_per_row": cpu_overhead * 1e6 / builds[0]["rows"],
             "nonzeros": builds[0]["nonzeros"],
-            "runs": len(builds),
-            "times": times,
-            "overhead_s": overhead,
-            "overhead_us_per_row": overhead * 1e6 / builds[0]["rows"],
-            "peak_rss_mb": _median([b["peak_rss_mb"] for b in builds]),
+            **_build_summary(builds, base_rows),
             "bare_read_s": _median([x["read_s"] for x in reads]),
             "bare_read_peak_rss_mb": _median([x["peak_rss_mb"] for x in reads]),
+            "load_average": list(os.getloadavg()),
         }
-        rows.append(row)
-        print(
-            f"[{time.strftime('%H:%M:%S')}] build {size}: {row['rows']:,} rows, overhead {overhead:.2f} s = "
-            f"{row['overhead_us_per_row']:.1f} us/row, peak {row['peak_rss_mb']:.0f} MB (bare read "
-            f"{row['bare_read_peak_rss_mb']:.0f} MB)",
-            file=sys.stderr,
-            flush=True,
+        message = (
+            f"[{time.strftime('%H:%M:%S')}] build {size}: {row['rows']:,} rows, overhead {row['overhead_s']:.2f} s = "
+            f"{row['overhead_us_per_row']:.1f} us/row (CPU {row['cpu_overhead_us_per_row']:.1f}), peak "
+            f"{row['peak_rss_mb']:.0f} MB (bare read {row['bare_read_peak_rss_mb']:.0f} MB)"
         )
+        if extended:
+            ext = _build_summary(extended, base_rows)
+            ext["extension"] = args.extension
+            ext["rows_added"] = extended[0]["extension_rows"]
+            ext["extra_us_per_row"] = ext["overhead_us_per_row"] - row["overhead_us_per_row"]
+            ext["extra_cpu_us_per_row"] = ext["cpu_overhead_us_per_row"] - row["cpu_overhead_us_per_row"]
+            ext["apply_us_per_row"] = ext["times"]["extensions_s"] * 1e6 / base_rows
+            row["with_extension"] = ext
+            message += (
+                f"; with the extension (+{ext['rows_added']} rows) {ext['overhead_us_per_row']:.1f} us/row, "
+                f"apply_extensions {ext['times']['extensions_s']:.3f} s, Pyomo import "
+                f"{ext['times']['pyomo_import_s']:.2f} s, peak {ext['peak_rss_mb']:.0f} MB"
+            )
+        rows.append(row)
+        print(message, file=sys.stderr, flush=True)
     return rows
 
 
@@ -559,7 +617,7 @@ def measure_size(size: str, args: argparse.Namespace) -> dict:
     bare_read = _median([b["read_s"] for b in bare_runs])
     bare_solve = _median([b["solve_s"] for b in bare_runs])
     bare_total = _median([b["read_s"] + b["solve_s"] for b in bare_runs])
-    overhead = times["build_lp_s"] + times["build_pyomo_s"] + times["handoff_s"] + times["extract_s"]
+    overhead = _overhead(times)
     objective, bare_objective = first["objective"], bare_runs[0]["objective"]
     row = {
         "size": size,
@@ -715,7 +773,7 @@ def measure_concurrent(size: str, args: argparse.Namespace) -> dict:
             print(f"[{time.strftime('%H:%M:%S')}] {size}: {k} done", file=sys.stderr, flush=True)
     first, bare, dflt = results["pathcast"], results["bare"], results.get("defaults")
     times = first["times"]
-    overhead = times["build_lp_s"] + times["build_pyomo_s"] + times["handoff_s"] + times["extract_s"]
+    overhead = _overhead(times)
     row = {
         "size": size,
         "formulation": "per_generator" if args.per_generator else "pooled",
@@ -782,14 +840,14 @@ def measure_concurrent(size: str, args: argparse.Namespace) -> dict:
 
 
 def build_exponent(rows: list[dict]) -> dict | None:
-    """Least-squares slope of log(build time) against log(years x hours) over the sizes with the most technologies."""
+    """Least-squares slope of log(array LP build time) against log(years x hours) over the sizes with the most technologies."""
     import numpy as np
 
     techs = max(int(r["size"].split("x")[2]) for r in rows)
     pts = [
         (
             int(r["size"].split("x")[0]) * int(r["size"].split("x")[1]),
-            r["times"]["build_lp_s"] + r["times"]["build_pyomo_s"],
+            r["times"]["build_lp_s"],
         )
         for r in rows
         if int(r["size"].split("x")[2]) == techs
@@ -871,11 +929,26 @@ def main(argv: list[str] | None = None) -> int:
         default=None,
         help="write benchmarks/RESULTS.md from these result files (rows merged, later files win)",
     )
-    parser.add_argument("--demo", default=None, help="with --report: JSON of a demo run (see RESULTS.md)")
+    parser.add_argument(
+        "--demo", default=None, help="with --report: JSON of benchmarks/demo_case.py (see RESULTS.md)"
+    )
+    parser.add_argument(
+        "--before",
+        default=str(HERE / "before_pyomo_route.json"),
+        help="with --report: the old route's numbers, shown as 'before' columns (default "
+        "benchmarks/before_pyomo_route.json; '' for none)",
+    )
     parser.add_argument(
         "--build-only",
         action="store_true",
         help="stage times and memory without the solve (build-time growth with size; every size in minutes)",
+    )
+    parser.add_argument(
+        "--extension",
+        default=None,
+        metavar="FILE[:function]",
+        help="with --build-only: also build each size with this extension's rules, alternately "
+        "(benchmarks/extension_rules.py:extend is one rule per year on model.capacity)",
     )
     parser.add_argument("--worker", choices=("pathcast", "bare", "build", "read"), help=argparse.SUPPRESS)
     parser.add_argument("--scenario", help=argparse.SUPPRESS)
@@ -898,7 +971,10 @@ def main(argv: list[str] | None = None) -> int:
         from report_results import write_report
 
         write_report(
-            [Path(p) for p in args.report], HERE / "RESULTS.md", Path(args.demo) if args.demo else None
+            [Path(p) for p in args.report],
+            HERE / "RESULTS.md",
+            Path(args.demo) if args.demo else None,
+            Path(args.before) if args.before else None,
         )
         return 0
     if args.build_only:
@@ -935,7 +1011,7 @@ def main(argv: list[str] | None = None) -> int:
 
 def print_table(rows: list[dict], exponent: dict | None) -> None:
     head = (
-        f"{'size':>11} {'rows':>8} {'cols':>8} {'nnz':>9} {'n':>2} {'load':>6} {'lp':>6} {'pyomo':>6} {'hand':>6} "
+        f"{'size':>11} {'rows':>8} {'cols':>8} {'nnz':>9} {'n':>2} {'load':>6} {'lp':>6} {'hand':>6} "
         f"{'solve':>7} {'extr':>6} {'total':>7} {'bare':>7} {'ratio':>6} {'us/row':>6} {'mem':>5} {'dflt':>7} "
         f"{'x dflt':>6} {'objdiff':>8}"
     )
@@ -944,7 +1020,7 @@ def print_table(rows: list[dict], exponent: dict | None) -> None:
         t = r["times"]
         print(
             f"{r['size']:>11} {r['rows']:>8,} {r['columns']:>8,} {r['nonzeros']:>9,} {r['runs']:>2} {t['load_s']:>6.2f} "
-            f"{t['build_lp_s']:>6.2f} {t['build_pyomo_s']:>6.2f} {t['handoff_s']:>6.2f} {t['solve_s']:>7.2f} "
+            f"{t['build_lp_s']:>6.2f} {t['handoff_s']:>6.2f} {t['solve_s']:>7.2f} "
             f"{t['extract_s']:>6.2f} {t['total_s']:>7.2f} {r['bare_total_s']:>7.2f} {r['ratio']:>6.3f} "
             f"{r['overhead_us_per_row']:>6.1f} {r['memory_ratio']:>5.2f} {r.get('defaults_solve_s', math.nan):>7.2f} "
             f"{r.get('speedup_vs_defaults', math.nan):>6.2f} {r['objective_rel_diff']:>8.1e}"

@@ -132,14 +132,21 @@ def _copy_demo(tmp_path: Path) -> Path:
     return folder
 
 
+def _files(folder: Path) -> set[str]:
+    return {str(path.relative_to(folder)) for path in folder.rglob("*")}
+
+
 def _run_case(case: Case, tmp_path: Path, capsys, monkeypatch) -> None:
     written = write_case(case, _copy_demo(tmp_path))
-    monkeypatch.chdir(tmp_path)  # nothing may be written, and nothing outside tmp_path
+    monkeypatch.chdir(tmp_path)  # a check writes nothing: no results/, nothing beside the files
+    before = _files(tmp_path)
     report = []
     for label, check in checks(case, written):
         outcome = guarded(check)
         out, err = capsys.readouterr()
         found = problems(case, written, outcome, out, err)
+        if _files(tmp_path) != before:
+            found.append(f"it wrote {sorted(_files(tmp_path) ^ before)}")
         if found:
             first = err.strip().splitlines()[0].replace(f"{tmp_path}/", "") if err.strip() else ""
             report.append(f"{label}: {'; '.join(found)} [exit {outcome.code!r}; stderr: {first!r}]")
