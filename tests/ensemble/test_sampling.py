@@ -9,7 +9,7 @@ from scipy import stats
 
 from pathcast.ensemble.members import member_mapping, scale_value, scenario_hash
 from pathcast.ensemble.sampling import design_members, frozen_distribution, inverse_cdf
-from pathcast.ensemble.spec import load_ensemble
+from pathcast.ensemble.spec import load_ensemble, member_count
 from pathcast.scenario.loader import load_scenario_mapping
 
 KS_P_THRESHOLD = (
@@ -121,8 +121,10 @@ inputs:
     low: 0.5
     high: 1.5
 """
-    members = design_members(load_ensemble(write_ensemble(text)))
+    spec = load_ensemble(write_ensemble(text))
+    members = design_members(spec)
     assert len(members) == 6
+    assert member_count(spec) == 6  # 3 values x 2 grid levels, counted without sampling
     assert sorted({m.samples["gas"] for m in members}) == pytest.approx(
         [0.75, 1.25]
     )  # mid-quantiles 1/4 and 3/4
@@ -132,6 +134,7 @@ inputs:
 def test_one_at_a_time_design(data_dir):
     spec = load_ensemble(data_dir / "ensemble_oat.yaml")
     members = design_members(spec)
+    assert member_count(spec) == len(members) == 5  # the base, then a low and a high per input
     assert [m.role for m in members] == [
         "base",
         "gas_price:low",

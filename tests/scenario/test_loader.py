@@ -7,8 +7,9 @@ from pathlib import Path
 import numpy as np
 import pytest
 
-from pathcast.scenario.inputs import growth_path, path_values, prepare_inputs
+from pathcast.scenario.inputs import prepare_inputs
 from pathcast.scenario.loader import load_scenario
+from pathcast.scenario.time_paths import growth_path, path_values
 from tests.conftest import tiny_mapping, write_scenario
 
 DEMO = Path(__file__).parents[2] / "scenarios" / "demo"

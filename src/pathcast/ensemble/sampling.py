@@ -14,7 +14,7 @@ from scipy.stats import qmc
 
 from .spec import Choice, EnsembleSpec, Levels, Lognormal, Normal, Triangular, Uniform
 
-__all__ = ["Member", "design_members", "member_count", "frozen_distribution", "inverse_cdf", "unit_hypercube"]
+__all__ = ["Member", "design_members", "frozen_distribution", "inverse_cdf", "unit_hypercube"]
 
 
 @dataclass(frozen=True)
@@ -89,15 +89,6 @@ def _low_high(item, quantiles: tuple[float, float]) -> tuple[Any, Any]:
         return item.values[0], item.values[-1]
     low, high = inverse_cdf(item, np.asarray(quantiles))
     return low, high
-
-
-def member_count(spec: EnsembleSpec) -> int:
-    f = spec.file
-    if f.design == "latin_hypercube":
-        return int(f.members)
-    if f.design == "grid":
-        return int(np.prod([len(_levels(item, f.grid_levels)) for item in f.inputs.values()], dtype=object))
-    return 1 + 2 * len(f.inputs)
 
 
 def design_members(spec: EnsembleSpec) -> list[Member]:

@@ -65,6 +65,7 @@ __all__ = [
     "resolve_path",
     "looks_like_ensemble",
     "ensemble_facts_if_ensemble",
+    "member_count",
     "DESIGNS",
     "DISTRIBUTIONS",
     "MAX_MEMBERS",
@@ -265,6 +266,23 @@ class EnsembleSpec:
         return self.base.input_hash
 
 
+def member_count(spec: EnsembleSpec) -> int:
+    """How many members the design makes: ``members`` for a Latin hypercube; for a grid, the product of each input's
+    level count (its values for a value list or a choice, ``grid_levels`` quantiles for a distribution); for
+    one-at-a-time, the base plus a low and a high member per input. Counted without sampling (no SciPy), so
+    ``pathcast check`` can state it."""
+    f = spec.file
+    if f.design == "latin_hypercube":
+        assert f.members is not None  # the file's validator requires 'members' for a Latin hypercube
+        return int(f.members)
+    if f.design == "grid":
+        return math.prod(
+            len(item.values) if isinstance(item, Levels | Choice) else int(f.grid_levels)
+            for item in f.inputs.values()
+        )
+    return 1 + 2 * len(f.inputs)
+
+
 # ------------------------------------------------------------------------------------------------- field paths
 def parse_path(text: str) -> tuple[str, ...]:
     return tuple(text.split("."))
@@ -332,8 +350,6 @@ def ensemble_facts_if_ensemble(path: str | Path) -> dict | None:
     if not looks_like_ensemble(data):
         return None
     spec = load_ensemble(path)
-    from .sampling import member_count
-
     count = member_count(spec)
     facts = {
         "file": str(spec.path),
@@ -445,8 +461,6 @@ def load_ensemble(path: str | Path) -> EnsembleSpec:
     loaded = EnsembleSpec(
         file=spec, path=path.resolve(), base_path=base_path, base=base, paths=paths, base_values=base_values
     )
-    from .sampling import member_count
-
     count = member_count(loaded)
     if spec.design != "latin_hypercube" and spec.members is not None and spec.members != count:
         raise located_error(

@@ -31,13 +31,16 @@ import sys
 from collections.abc import Callable, Sequence
 from dataclasses import dataclass
 from pathlib import Path
+from typing import TYPE_CHECKING
 
 import numpy as np
 
 from ..errors import ScenarioError, did_you_mean
 from ..scenario.extensions import ExtensionSpec
-from .build import PathwayModel
 from .labels import BlockLabels, block_labels
+
+if TYPE_CHECKING:  # annotations only: build.py imports this module when a scenario has extensions
+    from .build import PathwayModel
 
 __all__ = [
     "ExtensionRow",

@@ -16,6 +16,7 @@ from ..economics import capital_recovery_factor, discount_factors
 from .extensions import ExtensionSpec
 from .learning import capex_path
 from .schema import ELECTRICITY, CapexPath, Scenario
+from .time_paths import growth_path, path_values
 
 __all__ = [
     "ModelInputs",
@@ -23,8 +24,6 @@ __all__ = [
     "SupplyInputs",
     "FuelDemandInputs",
     "prepare_inputs",
-    "path_values",
-    "growth_path",
     "PJ_PER_GWH",
     "PJ_PER_GW_YEAR",
 ]
@@ -32,33 +31,6 @@ __all__ = [
 PJ_PER_GWH = 0.0036  # 1 GWh = 3.6 TJ (1 kWh = 3.6 MJ exactly, SI)
 HOURS_PER_YEAR = 8760.0
 PJ_PER_GW_YEAR = PJ_PER_GWH * HOURS_PER_YEAR  # 31.536 PJ from 1 GW running all year
-
-
-def path_values(path: float | dict[int, float] | None, years: np.ndarray, default: float = 0.0) -> np.ndarray:
-    """Values of a time path in each year: a number is constant; a {year: value} mapping is linear between its years
-    and flat before the first and after the last."""
-    if path is None:
-        return np.full(len(years), float(default))
-    if isinstance(path, dict):
-        known = sorted(path)
-        return np.interp(years, known, [path[y] for y in known]).astype(float)
-    return np.full(len(years), float(path))
-
-
-def growth_path(base: float, growth: float | dict[int, float] | None, years: np.ndarray) -> np.ndarray:
-    """Compound growth from ``base`` in the first year; ``growth`` is one rate [1/yr] or {first year of period: rate}.
-    The rate of a year applies to the step into that year; years before the first period use the first rate."""
-    if growth is None:
-        rates = np.zeros(len(years))
-    elif isinstance(growth, dict):
-        starts = sorted(growth)
-        rates = np.array(
-            [growth[max([s for s in starts if s <= y], default=starts[0])] for y in years], dtype=float
-        )
-    else:
-        rates = np.full(len(years), float(growth))
-    factors = np.concatenate([[1.0], np.cumprod(1.0 + rates[1:])])
-    return base * factors
 
 
 @dataclass(frozen=True)

@@ -7,6 +7,7 @@ import math
 import numpy as np
 
 from .schema import CapexPath
+from .time_paths import path_values
 
 __all__ = ["capex_path", "learning_exponent", "wright_cost"]
 
@@ -27,8 +28,6 @@ def wright_cost(
 
 def capex_path(path: CapexPath, years: np.ndarray) -> np.ndarray:
     """Capex by year [currency/kW] (or [currency/kWh] for storage energy), never below ``path.floor``."""
-    from .inputs import path_values
-
     years = np.asarray(years)
     if path.table is not None:
         values = path_values(path.table, years)
