@@ -198,8 +198,8 @@ def test_reserve_margin_without_firm_capacity(tmp_path):
 
     message = _error(tmp_path, change)
     assert (
-        "policy.reserve_margin: got 0.1; expected 0, or some generator or storage with a capacity_credit above 0"
-        in message
+        "policy.reserve_margin: got 0.1; expected null (no reserve-margin row), or some generator or storage with a "
+        "capacity credit above 0 to meet it" in message
     )
 
 

@@ -3,8 +3,11 @@
 When HiGHS finds the LP infeasible, :func:`pathcast.solve.find_conflict` asks it for an irreducible infeasible
 subsystem (IIS): a set of rows and column bounds that cannot all hold, any one of which dropped makes the rest
 feasible. Here each of its members is mapped back to the scenario limit that made it (the reserve margin of a year,
-the potential of a technology, a phase-out, a build-rate limit, the carbon budget, a yearly cap, the clean-electricity
-share, a storage duration, a supply potential, a demand) and the field that sets it. Rows and bounds that are the
+the potential of a technology, a phase-out, a build-rate limit, the base year's fleet, a lead time, a committed
+project, a build growth or early-retirement limit, the carbon budget, a yearly cap, the clean-electricity share, a
+storage duration, a supply potential, a demand) and the field that sets it. When the reserve margin of a year is in
+the conflict, a second small solve finds how much firm capacity that year lacks at best (the same LP with one
+slack on that year's row, minimised), so that the message says how much is short. Rows and bounds that are the
 model's own physics (capacity accounting, dispatch limits, non-negativity) are left out of the sentence: they hold in
 every scenario. Where HiGHS gives no IIS, the message lists only the limits that the scenario has.
 
@@ -14,13 +17,15 @@ typically a negative price.
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 
+import highspy
 import numpy as np
 
 from .model.build import PathwayModel
+from .model.names import BUILD_GROWTH_LIMIT, EARLY_RETIREMENT_LIMIT, ENERGY_NEW, NEW, RESERVE_MARGIN
 from .scenario.inputs import ModelInputs
-from .solve import Conflict
+from .solve import CONFLICT_TIME_LIMIT_S, Conflict, highs_lp, new_highs
 
 __all__ = ["ConflictMember", "conflict_members", "limits_in_scenario", "explain_no_optimum", "SHOWN_AT_MOST"]
 
@@ -34,6 +39,7 @@ class ConflictMember:
     """One scenario limit in an infeasible subsystem.
 
     kind: 'reserve margin', 'potential', 'phase-out', 'first build year', 'build-rate limit', 'minimum build',
+    'base-year fleet', 'lead time', 'committed project', 'build growth limit', 'early-retirement limit',
     'storage energy potential', 'supply potential', 'carbon budget', 'yearly emission cap', 'clean-electricity share',
     'longest storage duration', 'shortest storage duration', 'fuel demand', 'electricity demand', 'fixed history',
     'cap on unserved energy'. role: 'target' (something the scenario asks for: a margin, a share, a demand, a minimum)
@@ -61,6 +67,11 @@ _PLURAL = {
     "fuel demand": "fuel demands",
     "longest storage duration": "longest storage durations",
     "shortest storage duration": "shortest storage durations",
+    "base-year fleet": "base-year fleets",
+    "lead time": "lead times",
+    "committed project": "committed projects",
+    "build growth limit": "build growth limits",
+    "early-retirement limit": "early-retirement limits",
 }
 
 
@@ -89,11 +100,21 @@ def conflict_members(model: PathwayModel, conflict: Conflict) -> tuple[ConflictM
     found: list[tuple[ConflictMember, int | None]] = []
     row_offsets = lp.row_offsets()
     row_sizes = {name: block.size for name, block in lp.row_blocks.items()}
+    margin_rows: list[tuple[int, int, int]] = []  # (year, LP row, position in found) of reserve-margin rows
     for row in conflict.rows:
         name, index = _locate(lp, int(row), row_offsets, row_sizes)
         member = _row_member(name, index, inputs, ctx, years)
         if member is not None:
+            if name == RESERVE_MARGIN:
+                margin_rows.append((member[1], int(row), len(found)))
             found.append(member)
+    if margin_rows:
+        year, row, position = min(margin_rows)
+        member = found[position][0]
+        short = reserve_shortfall(model, row)
+        if short is not None:
+            figure = _shortfall_figure(member.figure, short, year, inputs)
+            found[position] = (replace(member, figure=figure), year)
     col_offsets = {name: block.offset for name, block in lp.variables.items()}
     col_sizes = {name: block.size for name, block in lp.variables.items()}
     lower, upper = lp.column_bounds()
@@ -128,12 +149,59 @@ def conflict_members(model: PathwayModel, conflict: Conflict) -> tuple[ConflictM
     )
 
 
+def reserve_shortfall(model: PathwayModel, row: int) -> float | None:
+    """The least firm capacity [GW] by which LP row ``row`` (a reserve-margin row, ``>=``) falls short when every
+    other row and bound of the model holds: the model with zero costs and one slack column s >= 0 on that row,
+    minimising s. None when even that has no optimum (the rest of the model conflicts as well)."""
+    lp_model = highs_lp(model.lp)
+    lp_model.col_cost_ = np.zeros(lp_model.num_col_)
+    h = new_highs()
+    h.setOptionValue("time_limit", float(CONFLICT_TIME_LIMIT_S))
+    h.passModel(lp_model)
+    h.addCol(1.0, 0.0, np.inf, 1, np.array([row], dtype=np.int32), np.array([1.0]))
+    h.run()
+    if h.getModelStatus() != highspy.HighsModelStatus.kOptimal:
+        return None
+    return max(0.0, float(h.getInfo().objective_function_value))
+
+
+def _shortfall_figure(figure: str, short_gw: float, year: int, inputs: ModelInputs) -> str:
+    """The reserve margin's figure with how much firm capacity the year lacks at best [MW]."""
+    if short_gw <= 1e-9:
+        return figure
+    short = short_gw * 1000.0
+    if year == int(inputs.years[0]) and not inputs.new_builds_in_base_year:
+        return f"{figure}; the existing fleet and committed projects are {short:,.0f} MW of firm capacity short"
+    return f"{figure}; {short:,.0f} MW of firm capacity short at best"
+
+
+def _section_path(t) -> str:
+    return f"technologies.{_SECTION[t.kind]}.{t.name}"
+
+
 def _row_member(name: str, index: tuple[int, ...], inputs: ModelInputs, ctx, years: list[int]):
     """(member, year) of an IIS row, or None for the model's own rows."""
+    if name == BUILD_GROWTH_LIMIT:
+        t = [t for t in ctx.capacity_techs if t.build_growth_factor is not None][index[0]]
+        subject = (
+            f"{t.name} ({t.build_growth_seed_gw * 1000:,.0f} MW/yr + {t.build_growth_factor:g} x the year "
+            "before)"
+        )
+        return ConflictMember(
+            "build growth limit", "limit", subject=subject, fields=(f"{_section_path(t)}.max_build_growth",)
+        ), years[index[1] + 1]
+    if name == EARLY_RETIREMENT_LIMIT:
+        t = [t for t in ctx.capacity_techs if np.isfinite(t.max_early_retirement_gw)][index[0]]
+        return ConflictMember(
+            "early-retirement limit",
+            "limit",
+            subject=f"{t.name} ({t.max_early_retirement_gw * 1000:,.0f} MW/yr)",
+            fields=(f"{_section_path(t)}.max_early_retirement_mw_per_year",),
+        ), years[index[1]]
     if name == "reserve_margin":
         y = index[0]
         peak = float(inputs.peak_demand_gw[y]) * 1000.0
-        factor = 1.0 + inputs.reserve_margin
+        factor = 1.0 + (inputs.reserve_margin or 0.0)
         detail = f"firm capacity of at least {factor:.2f} x the peak demand"
         figure = f"{factor * peak:,.0f} MW for a peak of {peak:,.0f} MW in {years[y]}"
         member = ConflictMember(
@@ -210,6 +278,13 @@ def _column_member(name, index, side, bound, inputs: ModelInputs, ctx, years):
             else:
                 kind, detail = "fixed history", "builds, capacity and emissions fixed before the start year"
             return ConflictMember(kind, "limit", detail=detail), int(year)
+    if name in (NEW, ENERGY_NEW) and (side == "lower" or _only_committed(
+        ctx.capacity_techs[index[0]] if name == NEW else ctx.storage[index[0]], years[index[1]]
+    )):
+        t = ctx.capacity_techs[index[0]] if name == NEW else ctx.storage[index[0]]
+        member = _committed_member(t, name, years[index[1]], side, bound, inputs)
+        if member is not None or name == ENERGY_NEW:
+            return member
     if name in ("new", "capacity"):
         t = ctx.capacity_techs[index[0]]
         year = years[index[1]]
@@ -281,6 +356,49 @@ def _column_member(name, index, side, bound, inputs: ModelInputs, ctx, years):
     return None
 
 
+def _only_committed(t, year: int) -> bool:
+    """True when ``t`` can have only committed projects come into service in ``year`` (the base year, its lead
+    time); a first build year or a phase-out is named as such instead."""
+    if t.earliest_new_year is None or year >= t.earliest_new_year:
+        return False
+    if t.first_build_year is not None and year < t.first_build_year:
+        return False
+    return not (t.phase_out_year is not None and year >= t.phase_out_year)
+
+
+def _committed_member(t, name: str, year: int, side: str, bound: float, inputs: ModelInputs):
+    """(member, year) of a build bound that comes from the starting year: a committed project (lower bound), the
+    base year's fleet or a lead time (upper bound); None for other build bounds."""
+    base = _section_path(t)
+    attribute = "committed_gw" if name == NEW else "committed_energy_gwh"
+    committed = getattr(t, attribute)
+    value = 0.0 if committed is None else float(committed[year - int(inputs.years[0])])
+    unit = "MW" if name == NEW else "MWh"
+    if side == "lower":
+        if value <= 0 or bound > value * (1 + 1e-9):
+            return None  # a minimum build above the committed projects
+        return ConflictMember(
+            "committed project",
+            "target",
+            subject=f"{t.name} ({value * 1000:,.0f} {unit} in {year})",
+            fields=(f"{base}.committed",),
+        ), year
+    if year == int(inputs.years[0]):
+        return ConflictMember(
+            "base-year fleet",
+            "limit",
+            subject=t.name,
+            detail="existing and committed capacity only",
+            fields=(f"{base}.committed", "metadata.new_builds_in_base_year"),
+        ), year
+    return ConflictMember(
+        "lead time",
+        "limit",
+        subject=f"{t.name} ({t.lead_time_years} yr: new builds from {t.earliest_new_year})",
+        fields=(f"{base}.lead_time_years", f"{base}.committed"),
+    ), year
+
+
 def limits_in_scenario(inputs: ModelInputs) -> list[str]:
     """The kinds of limit a scenario has, in words (only those present), for a message where HiGHS named none."""
     techs = inputs.technologies
@@ -292,6 +410,16 @@ def limits_in_scenario(inputs: ModelInputs) -> list[str]:
     if inputs.clean_share is not None and np.any(~np.isnan(inputs.clean_share)):
         out.append("the clean-electricity share")
     out.append("the reserve margin")
+    if not inputs.new_builds_in_base_year:
+        out.append("the base year's fleet (existing and committed capacity only)")
+    if any(t.committed_gw is not None and np.any(t.committed_gw > 0) for t in techs):
+        out.append("the committed projects")
+    if any(t.lead_time_years is not None and t.lead_time_years > 1 for t in techs):
+        out.append("the lead times")
+    if any(t.build_growth_factor is not None for t in techs):
+        out.append("the build growth limits")
+    if any(np.isfinite(t.max_early_retirement_gw) for t in techs):
+        out.append("the early-retirement limits")
     if any(np.any(t.min_build_gw > 0) for t in techs):
         out.append("the minimum builds")
     if any(np.any(np.isfinite(t.max_build_gw) & (t.max_build_gw > 0)) for t in techs):

@@ -18,21 +18,26 @@ is zero) and keeping those whose relaxation lowers the minimum, ranked by how mu
 from __future__ import annotations
 
 import math
-from collections.abc import Callable
+from collections.abc import Callable, Sequence
 from dataclasses import dataclass, field, replace
+from pathlib import Path
 
 import numpy as np
 
 from ..errors import InfeasibleError
-from ..pipeline import Run, solve_inputs
+from ..pipeline import Run, run_scenario, solve_inputs
 from ..results.budget import budget_tolerance
+from ..scenario.extensions import ExtensionSpec
 from ..scenario.inputs import ModelInputs
+from ..scenario.loader import LoadedScenario
 from .variants import cap_unserved, emissions_only, without_budget
 
 __all__ = [
     "BindingLimit",
     "BudgetDiagnosis",
+    "CheckedRun",
     "diagnose_budget",
+    "run_checking_budget",
     "minimum_budget_emissions",
     "binding_limits",
     "confirm_limits",
@@ -325,7 +330,7 @@ def _relaxed(inputs: ModelInputs, limit: BindingLimit) -> tuple[ModelInputs, str
             supplies[i], potential_pj=up(supplies[i].potential_pj, RELAXATION_AT_ZERO["PJ/yr"])
         )
         return replace(inputs, supplies=tuple(supplies)), step_text
-    if limit.kind == "reserve margin" and inputs.reserve_margin > 0:
+    if limit.kind == "reserve margin" and inputs.reserve_margin is not None and inputs.reserve_margin > 0:
         step = RELAXATION_AT_ZERO["share"]
         return replace(
             inputs, reserve_margin=max(0.0, inputs.reserve_margin - step)
@@ -489,3 +494,66 @@ def raise_if_not_achievable(d: BudgetDiagnosis | None) -> None:
     """Raise :class:`InfeasibleError` (exit 3) with :func:`explain` when the budget is not achievable."""
     if d is not None and not d.achievable:
         raise InfeasibleError(explain(d), diagnosis=d.as_dict())
+
+
+@dataclass(frozen=True)
+class CheckedRun:
+    """A solved scenario and the verdict on its carbon budget. ``diagnosis`` is None when the scenario has no budget
+    or an overshoot is priced (the budget is then no hard limit)."""
+
+    run: Run
+    diagnosis: BudgetDiagnosis | None = None
+
+    @property
+    def achievable(self) -> bool:
+        """False when the least-cost pathway meets the budget only by shedding demand (module docstring)."""
+        return self.diagnosis is None or self.diagnosis.achievable
+
+    def raise_if_not_achievable(self) -> None:
+        """Raise :class:`InfeasibleError` (exit 3) with :func:`explain` when the budget is not achievable."""
+        raise_if_not_achievable(self.diagnosis)
+
+
+def run_checking_budget(
+    scenario: str | Path | LoadedScenario,
+    *,
+    solver: dict | None = None,
+    progress: Progress | None = None,
+    inputs_hook: Callable[[ModelInputs], ModelInputs] | None = None,
+    extensions: Sequence[ExtensionSpec] = (),
+    budget_overshoot_price: float | None = None,
+) -> CheckedRun:
+    """What ``pathcast run`` computes: :func:`pathcast.pipeline.run_scenario` (same arguments), then the verdict on
+    the carbon budget (:func:`diagnose_budget`) unless an overshoot is priced.
+
+    A budget HiGHS finds infeasible raises :class:`InfeasibleError` with :func:`explain` (the tightest feasible budget,
+    the shortfall [MtCO2] and the binding limits); a pathway that meets the budget only by shedding demand is returned
+    with its not-achievable diagnosis (:attr:`CheckedRun.achievable` False), so that its tables can be kept for
+    inspection before :meth:`CheckedRun.raise_if_not_achievable`."""
+    captured: list[ModelInputs] = []
+
+    def keep(inputs: ModelInputs) -> ModelInputs:
+        inputs = inputs_hook(inputs) if inputs_hook is not None else inputs
+        captured.append(inputs)
+        return inputs
+
+    try:
+        run = run_scenario(
+            scenario,
+            solver=solver,
+            progress=progress,
+            inputs_hook=keep,
+            extensions=extensions,
+            budget_overshoot_price=budget_overshoot_price,
+        )
+    except InfeasibleError:
+        if not captured or captured[-1].budget_mt is None or budget_overshoot_price is not None:
+            raise
+        diagnosis = diagnose_budget(captured[-1], budget_infeasible=True, solver=solver, progress=progress)
+        # HiGHS said infeasible, so the budget cannot be achievable
+        if diagnosis is None or diagnosis.achievable:  # pragma: no cover
+            raise
+        raise InfeasibleError(explain(diagnosis), diagnosis=diagnosis.as_dict()) from None
+    if budget_overshoot_price is not None:
+        return CheckedRun(run)
+    return CheckedRun(run, diagnose_budget(captured[-1], budget_run=run, solver=solver, progress=progress))

@@ -28,6 +28,10 @@ class BuildContext:
     delivery_pairs: list[tuple[int, int]] = field(default_factory=list)
     # set by policy: the years with a yearly emission cap, in the order of the emission_cap rows
     cap_years: list[int] = field(default_factory=list)
+    # set by adequacy: storage credited by duration (names, in storage_firm block order) and the credit tranches
+    # ((generator name, tranche number) in credit_tranche block order)
+    storage_firm: list[str] = field(default_factory=list)
+    credit_tranches: list[tuple[str, int]] = field(default_factory=list)
 
     def __post_init__(self) -> None:
         techs = self.inputs.technologies
@@ -40,11 +44,21 @@ class BuildContext:
         self.fuel_generators = [t for t in self.generators if t.fuel is not None]
         # Generators that burn no fuel, cost nothing per MWh and count as clean: their output only enters the
         # electricity balance (and the clean share), so availability x capacity less one curtailment per hour shared
-        # by all of them has the same optimum as one output variable and limit row per generator.
+        # by all of them has the same optimum as one output variable and limit row per generator. A generator with
+        # operating limits (minimum stable output, ramp rate, reserve) is never pooled: it needs its own output.
         pooled = bool(self.inputs.solver.get("pooled_curtailment", True))
-        is_pooled = [pooled and t.fuel is None and t.variable_om == 0.0 and t.clean for t in self.generators]
+        is_pooled = [
+            pooled and t.fuel is None and t.variable_om == 0.0 and t.clean and not t.operating_limits
+            for t in self.generators
+        ]
         self.pooled_generators = [t for t, p in zip(self.generators, is_pooled, strict=True) if p]
         self.dispatched_generators = [t for t, p in zip(self.generators, is_pooled, strict=True) if not p]
+        # operating flexibility (model.flexibility): generators with an online capacity per hour, and the reserve
+        # holders when the scenario asks for an operating reserve
+        self.online_generators = [t for t in self.dispatched_generators if t.operating_limits]
+        reserve = self.inputs.operating_reserve is not None
+        self.reserve_generators = [t for t in self.online_generators if reserve and t.provides_reserve]
+        self.reserve_storage = [t for t in self.storage if reserve and t.provides_reserve]
         self.position = {t.name: i for i, t in enumerate(self.capacity_techs)}
         self.Y = len(self.inputs.years)
         self.D = len(self.inputs.day_names)

@@ -31,6 +31,9 @@ TECHNOLOGY_LISTS: dict[str, str] = {
     names.FUEL_USE: "fuel_generators",
     names.CONVERTER_POWER: "electric_converters",
     names.CONVERTER_INPUT: "fuel_converters",
+    names.ONLINE_CAPACITY: "online_generators",
+    names.RESERVE: "reserve_generators",
+    names.STORAGE_RESERVE: "reserve_storage",
 }
 
 
@@ -68,6 +71,10 @@ class BlockLabels:
 
 def _axis_labels(ctx: BuildContext, name: str, dim: str) -> tuple:
     inputs = ctx.inputs
+    if name == names.STORAGE_FIRM and dim == "technology":
+        return tuple(ctx.storage_firm)
+    if dim == "tranche":  # "<generator>.<tranche number>"
+        return tuple(f"{generator}.{i}" for generator, i in ctx.credit_tranches)
     if dim == "technology":
         return tuple(t.name for t in getattr(ctx, TECHNOLOGY_LISTS[name]))
     if dim == "year":

@@ -28,6 +28,12 @@ __all__ = [
     "UNSERVED_FUEL",
     "EMISSIONS",
     "BUDGET_OVERSHOOT",
+    "STORAGE_FIRM",
+    "CREDIT_TRANCHE",
+    "ONLINE_CAPACITY",
+    "RESERVE",
+    "STORAGE_RESERVE",
+    "RESERVE_SHORTFALL",
     "VARIABLE_BLOCKS",
     # row blocks
     "CAPACITY_INSTALLED",
@@ -36,6 +42,8 @@ __all__ = [
     "ENERGY_CAPACITY_NO_RETURN",
     "STORAGE_DURATION_MAX",
     "STORAGE_DURATION_MIN",
+    "BUILD_GROWTH_LIMIT",
+    "EARLY_RETIREMENT_LIMIT",
     "GENERATION_LIMIT",
     "CURTAILMENT_LIMIT",
     "ELECTRICITY_BALANCE",
@@ -53,6 +61,17 @@ __all__ = [
     "EMISSION_CAP",
     "RESERVE_MARGIN",
     "CLEAN_ELECTRICITY_SHARE",
+    "STORAGE_FIRM_LIMIT",
+    "CREDIT_TRANCHE_SUM",
+    "ONLINE_CAPACITY_LIMIT",
+    "ONLINE_OUTPUT_LIMIT",
+    "MIN_STABLE_OUTPUT",
+    "RAMP_UP",
+    "RAMP_DOWN",
+    "RESERVE_RAMP_LIMIT",
+    "STORAGE_RESERVE_POWER_LIMIT",
+    "STORAGE_RESERVE_ENERGY_LIMIT",
+    "OPERATING_RESERVE",
     "ROW_BLOCKS",
 ]
 
@@ -81,6 +100,15 @@ UNSERVED_FUEL = "unserved_fuel"
 EMISSIONS = "emissions"
 # policy: priced overshoot of the carbon budget [MtCO2] (analysis runs only)
 BUDGET_OVERSHOOT = "budget_overshoot"
+# adequacy: firm contribution of storage credited by duration [GW]; capacity in each credit tranche [GW]
+STORAGE_FIRM = "storage_firm"
+CREDIT_TRANCHE = "credit_tranche"
+# flexibility: online (committed) capacity of generators with operating limits, upward reserve held by generators and
+# storage, and reserve not held [GW]
+ONLINE_CAPACITY = "online_capacity"
+RESERVE = "reserve"
+STORAGE_RESERVE = "storage_reserve"
+RESERVE_SHORTFALL = "reserve_shortfall"
 
 VARIABLE_BLOCKS: tuple[str, ...] = (
     NEW,
@@ -101,6 +129,12 @@ VARIABLE_BLOCKS: tuple[str, ...] = (
     UNSERVED_FUEL,
     EMISSIONS,
     BUDGET_OVERSHOOT,
+    STORAGE_FIRM,
+    CREDIT_TRANCHE,
+    ONLINE_CAPACITY,
+    RESERVE,
+    STORAGE_RESERVE,
+    RESERVE_SHORTFALL,
 )
 
 # --- row blocks, by the family that creates them -----------------------------------------------------------------
@@ -111,6 +145,10 @@ ENERGY_CAPACITY_INSTALLED = "energy_capacity_installed"
 ENERGY_CAPACITY_NO_RETURN = "energy_capacity_no_return"
 STORAGE_DURATION_MAX = "storage_duration_max"
 STORAGE_DURATION_MIN = "storage_duration_min"
+# builds of a year at most a seed + a factor x the previous year's (plus committed projects) [GW/yr]
+BUILD_GROWTH_LIMIT = "build_growth_limit"
+# capacity retired early (installed less in service) grows by at most a limit a year [GW/yr]
+EARLY_RETIREMENT_LIMIT = "early_retirement_limit"
 # dispatch
 GENERATION_LIMIT = "generation_limit"
 CURTAILMENT_LIMIT = "curtailment_limit"
@@ -133,6 +171,19 @@ CARBON_BUDGET = "carbon_budget"
 EMISSION_CAP = "emission_cap"
 RESERVE_MARGIN = "reserve_margin"
 CLEAN_ELECTRICITY_SHARE = "clean_electricity_share"
+# adequacy
+STORAGE_FIRM_LIMIT = "storage_firm_limit"
+CREDIT_TRANCHE_SUM = "credit_tranche_sum"
+# flexibility
+ONLINE_CAPACITY_LIMIT = "online_capacity_limit"
+ONLINE_OUTPUT_LIMIT = "online_output_limit"
+MIN_STABLE_OUTPUT = "min_stable_output"
+RAMP_UP = "ramp_up"
+RAMP_DOWN = "ramp_down"
+RESERVE_RAMP_LIMIT = "reserve_ramp_limit"
+STORAGE_RESERVE_POWER_LIMIT = "storage_reserve_power_limit"
+STORAGE_RESERVE_ENERGY_LIMIT = "storage_reserve_energy_limit"
+OPERATING_RESERVE = "operating_reserve"
 
 ROW_BLOCKS: tuple[str, ...] = (
     CAPACITY_INSTALLED,
@@ -141,6 +192,8 @@ ROW_BLOCKS: tuple[str, ...] = (
     ENERGY_CAPACITY_NO_RETURN,
     STORAGE_DURATION_MAX,
     STORAGE_DURATION_MIN,
+    BUILD_GROWTH_LIMIT,
+    EARLY_RETIREMENT_LIMIT,
     GENERATION_LIMIT,
     CURTAILMENT_LIMIT,
     ELECTRICITY_BALANCE,
@@ -158,4 +211,15 @@ ROW_BLOCKS: tuple[str, ...] = (
     EMISSION_CAP,
     RESERVE_MARGIN,
     CLEAN_ELECTRICITY_SHARE,
+    STORAGE_FIRM_LIMIT,
+    CREDIT_TRANCHE_SUM,
+    ONLINE_CAPACITY_LIMIT,
+    ONLINE_OUTPUT_LIMIT,
+    MIN_STABLE_OUTPUT,
+    RAMP_UP,
+    RAMP_DOWN,
+    RESERVE_RAMP_LIMIT,
+    STORAGE_RESERVE_POWER_LIMIT,
+    STORAGE_RESERVE_ENERGY_LIMIT,
+    OPERATING_RESERVE,
 )

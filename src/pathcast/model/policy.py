@@ -7,6 +7,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from .adequacy import add_firm_capacity
 from .context import BuildContext, read_only
 from .dispatch import add_pooled_output
 from .names import (
@@ -55,24 +56,17 @@ def add_policy(ctx: BuildContext) -> None:
         ctx.cap_years = cap_years
         rows.add(np.arange(len(cap_years)), emissions[np.searchsorted(years, cap_years)], 1.0)
 
-    # reserve margin: sum credit x capacity >= (1 + margin) x peak demand [GW]
-    credited = [t for t in ctx.capacity_techs if t.capacity_credit > 0]
-    rows = lp.add_rows(
-        RESERVE_MARGIN,
-        ("year",),
-        (Y,),
-        ">=",
-        "GW",
-        rhs=(1.0 + inputs.reserve_margin) * inputs.peak_demand_gw,
-    )
-    if credited:
-        capacity = ctx.capacity_columns(credited)
-        credit = np.array([[t.capacity_credit] for t in credited])
-        rows.add(
-            np.broadcast_to(np.arange(Y)[None, :], capacity.shape),
-            capacity,
-            np.broadcast_to(credit, capacity.shape),
+    # reserve margin: firm capacity >= (1 + margin) x peak demand [GW]; no row at all without a margin
+    if inputs.reserve_margin is not None:
+        rows = lp.add_rows(
+            RESERVE_MARGIN,
+            ("year",),
+            (Y,),
+            ">=",
+            "GW",
+            rhs=(1.0 + inputs.reserve_margin) * inputs.peak_demand_gw,
         )
+        add_firm_capacity(ctx, rows)
 
     # clean share of generation: sum_clean E - share x sum_all E >= 0 [TWh]
     if inputs.clean_share is not None and ctx.generators:
@@ -132,7 +126,9 @@ def read_policy(ctx: BuildContext, x: np.ndarray, row_dual: np.ndarray) -> Polic
     if EMISSION_CAP in lp.row_blocks:
         positions = np.searchsorted(inputs.years, ctx.cap_years)
         from_cap[positions] = -ctx.row_values(EMISSION_CAP, row_dual) / df[positions]
-    reserve = ctx.row_values(RESERVE_MARGIN, row_dual) / df
+    reserve = (
+        ctx.row_values(RESERVE_MARGIN, row_dual) / df if RESERVE_MARGIN in lp.row_blocks else np.zeros(Y)
+    )
     clean = np.full(Y, np.nan)
     if CLEAN_ELECTRICITY_SHARE in lp.row_blocks:
         active = np.flatnonzero(~np.isnan(inputs.clean_share))

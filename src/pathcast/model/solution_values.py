@@ -11,11 +11,14 @@ from dataclasses import dataclass
 from typing import TYPE_CHECKING
 
 from ..scenario.inputs import ModelInputs
+from .adequacy import FirmCapacityValues, read_firm_capacity
 from .build import PathwayModel
 from .capacity import CapacityValues, read_capacity
+from .cost_recovery import CapacityValueValues, read_capacity_value
 from .dispatch import DispatchValues, read_dispatch
 from .emissions import EmissionsValues, read_emissions
 from .extension import read_extension_rows
+from .flexibility import FlexibilityValues, read_flexibility
 from .fuels import FuelValues, read_fuels
 from .policy import PolicyValues, read_policy
 from .storage import StorageValues, read_storage
@@ -40,8 +43,12 @@ class SolutionValues:
     fuels: FuelValues
     emissions: EmissionsValues
     policy: PolicyValues
+    firm: FirmCapacityValues  # firm capacity counted toward the reserve margin, by technology and year
+    capacity_value: CapacityValueValues  # marginal value of capacity in service (installed rows' duals)
     # one record per row an extension added (pathcast.model.extension.read_extension_rows); empty without extensions
     extension_rows: tuple[dict, ...] = ()
+    # operating flexibility (online capacity, operating reserve); None for values built without it
+    flexibility: FlexibilityValues | None = None
 
 
 def read_solution(model: PathwayModel, solution: Solution) -> SolutionValues:
@@ -56,5 +63,8 @@ def read_solution(model: PathwayModel, solution: Solution) -> SolutionValues:
         fuels=read_fuels(ctx, x, row_dual),
         emissions=read_emissions(ctx, x),
         policy=read_policy(ctx, x, row_dual),
+        firm=read_firm_capacity(ctx, x, row_dual),
+        capacity_value=read_capacity_value(ctx, row_dual),
         extension_rows=tuple(read_extension_rows(model, x, row_dual)) if ctx.extension_rows else (),
+        flexibility=read_flexibility(ctx, x, row_dual),
     )

@@ -1,8 +1,12 @@
 """The assumptions behind a run, as one long table for memos: demand growth, technology costs and learning, fuel
 prices, emission factors with their sources, the discount rate and the policy settings.
 
-Built from a loaded scenario (:func:`assumptions_table`) or, when only a result folder is at hand and its scenario
-file cannot be read back unchanged, from the run's metadata and summary (:func:`metadata_assumptions`).
+Built from the loaded scenario when it is run (:func:`assumptions_table`, by :func:`pathcast.pipeline.run_scenario`):
+the run's result carries it as its table ``assumptions`` (:data:`ASSUMPTIONS_TABLE`), written to the result folder as
+assumptions.csv and read back with it, so a memo of the folder needs no scenario file. :func:`result_assumptions`
+gives a result's table; for a result folder of an earlier pathcast, which has no assumptions.csv, it falls back to the
+scenario file when that file is unchanged since the run (same input hash), and otherwise to the few assumptions the
+run's metadata and summary record (:func:`metadata_assumptions`), with a note saying so.
 
 Columns: section, subject, item, value (display text), unit, source. ``source`` names the scenario file that set the
 value, the citation the scenario gives (emission factors), or says that pathcast's default was used.
@@ -12,7 +16,7 @@ from __future__ import annotations
 
 from collections.abc import Mapping
 from pathlib import Path
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 import numpy as np
 import pandas as pd
@@ -21,9 +25,22 @@ from ..scenario.learning import capex_path
 from ..scenario.loader import LoadedScenario
 from ..scenario.schema import CapexPath, Metadata, Policy
 
-__all__ = ["assumptions_table", "metadata_assumptions", "ASSUMPTION_COLUMNS", "SECTIONS"]
+if TYPE_CHECKING:
+    from .run_result import RunResult
+
+__all__ = [
+    "assumptions_table",
+    "metadata_assumptions",
+    "result_assumptions",
+    "ASSUMPTION_COLUMNS",
+    "ASSUMPTIONS_TABLE",
+    "SECTIONS",
+]
 
 ASSUMPTION_COLUMNS = ("section", "subject", "item", "value", "unit", "source")
+ASSUMPTIONS_TABLE = (
+    "assumptions"  # the name of the table in RunResult.tables and of its file (assumptions.csv)
+)
 SECTIONS = ("general", "demand", "technologies", "fuel prices", "emission factors")
 
 
@@ -186,7 +203,7 @@ def assumptions_table(loaded: LoadedScenario) -> pd.DataFrame:
         "general",
         "",
         "reserve margin",
-        _percent(policy.reserve_margin),
+        "none (no reserve-margin row)" if policy.reserve_margin is None else _percent(policy.reserve_margin),
         "-",
         rows.source(("policy", "reserve_margin"), Policy, "reserve_margin"),
     )
@@ -463,3 +480,35 @@ def metadata_assumptions(metadata: Mapping[str, Any], summary: Mapping[str, Any]
         )
     )
     return pd.DataFrame(rows, columns=list(ASSUMPTION_COLUMNS))
+
+
+def result_assumptions(result: RunResult, folder: Path | str | None = None) -> tuple[pd.DataFrame, str]:
+    """(assumptions table, note) of a run's result; the note is empty when the table is complete.
+
+    The table the result carries (every run of this pathcast, and its result folder) is returned as it is. A result
+    folder of an earlier pathcast (``folder``, without assumptions.csv) has none: then its scenario file is read
+    when it is unchanged since the run (the input hash in manifest.json), and otherwise the assumptions the folder
+    records itself are returned with a note naming the reason."""
+    from ..errors import ScenarioError
+    from ..scenario.loader import load_scenario
+
+    carried = result.tables.get(ASSUMPTIONS_TABLE)
+    if carried is not None:
+        return carried, ""
+    scenario_file = result.manifest.get("source")
+    if scenario_file and Path(scenario_file).is_file():
+        try:
+            loaded = load_scenario(scenario_file)
+        except ScenarioError:
+            loaded = None
+        if loaded is not None and loaded.input_hash == result.manifest.get("input_hash"):
+            return assumptions_table(loaded), ""
+        reason = f"its scenario file {scenario_file} has changed since the run"
+    else:
+        reason = f"its scenario file {scenario_file or '(not recorded)'} cannot be found"
+    where = f"the result folder {folder}" if folder is not None else "the run's metadata"
+    note = (
+        f"The assumptions of {result.scenario_name} are incomplete: {reason}, so only the assumptions recorded in "
+        f"{where} are shown."
+    )
+    return metadata_assumptions(result.metadata, result.summary), note

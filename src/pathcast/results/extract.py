@@ -12,6 +12,7 @@ import numpy as np
 import pandas as pd
 
 from ..model.solution_values import SolutionValues, read_solution
+from .cost_recovery import capacity_price_table, cost_recovery_tables
 
 if TYPE_CHECKING:
     from ..model.build import PathwayModel
@@ -21,6 +22,7 @@ __all__ = [
     "extract_tables",
     "headline_figures",
     "tables_from_values",
+    "base_year_calibration_table",
     "headline_from_values",
     "capacity_tables",
     "electricity_tables",
@@ -29,6 +31,7 @@ __all__ = [
     "cost_table",
     "price_tables",
     "lcoe_table",
+    "flexibility_tables",
 ]
 
 ELECTRICITY_COLUMNS = ["technology", "kind", "year", "generation_twh", "consumption_twh"]
@@ -76,6 +79,7 @@ def capacity_tables(values: SolutionValues) -> tuple[pd.DataFrame, pd.DataFrame]
     cap["new_mw"] = (fleet.new_gw * 1000).ravel()
     cap["retired_mw"] = (fleet.retired_gw * 1000).ravel()
     cap["early_retired_mw"] = (np.maximum(fleet.installed_gw - fleet.capacity_gw, 0.0) * 1000).ravel()
+    cap["committed_mw"] = (fleet.committed_gw * 1000).ravel()
     kinds = dict(zip(fleet.technologies, fleet.kinds, strict=True))
     cap.insert(1, "kind", cap["technology"].map(kinds))
 
@@ -302,6 +306,9 @@ def cost_table(values: SolutionValues) -> pd.DataFrame:
         "unserved_electricity": values.dispatch.unserved_cost_million,
         "unserved_fuel": values.fuels.unserved_fuel_cost_million,
     }
+    flexibility = values.flexibility
+    if flexibility is not None and flexibility.reserve_required:
+        components["reserve_shortfall"] = flexibility.shortfall_cost_million
     df = values.inputs.discount_factor
     return pd.concat(
         [
@@ -376,6 +383,119 @@ def lcoe_table(
     return pd.DataFrame(rows, columns=LCOE_COLUMNS)
 
 
+# ------------------------------------------------------------------------------------------------- flexibility
+ONLINE_CAPACITY_COLUMNS = ["year", "day", "hour", "technology", "online_mw", "generation_mw", "min_output_mw"]
+RESERVE_PROVISION_COLUMNS = ["year", "day", "hour", "technology", "reserve_mw"]
+
+
+def flexibility_tables(values: SolutionValues) -> dict[str, pd.DataFrame]:
+    """The tables of a run with operating limits or an operating reserve (none otherwise): ``online_capacity``
+    [MW] of every generator with operating limits per representative hour, with its output and minimum output;
+    ``operating_reserve`` per representative hour (requirement, reserve held, shortfall [MW] and the price of
+    holding reserve [currency/MW per hour]) and ``reserve_provision`` [MW] by holder, when the scenario asks for an
+    operating reserve."""
+    flexibility = values.flexibility
+    if flexibility is None or not flexibility.active:
+        return {}
+    index = _hourly_index(values)
+
+    def by_technology(
+        names: tuple[str, ...], columns: dict[str, np.ndarray], order: list[str]
+    ) -> pd.DataFrame:
+        frames = [
+            index.assign(
+                technology=name, **{key: (array[i] * 1000).ravel() for key, array in columns.items()}
+            )
+            for i, name in enumerate(names)
+        ]
+        return _concat(frames, order)[order] if frames else pd.DataFrame(columns=order)
+
+    minimum = np.asarray(flexibility.min_stable_output, dtype=float).reshape(-1, 1, 1, 1)
+    tables = {
+        "online_capacity": by_technology(
+            flexibility.online_generators,
+            {
+                "online_mw": flexibility.online_gw,
+                "generation_mw": flexibility.generation_gw,
+                "min_output_mw": minimum * flexibility.online_gw,
+            },
+            ONLINE_CAPACITY_COLUMNS,
+        )
+    }
+    if flexibility.reserve_required:
+        provided = (
+            flexibility.reserve_gw.sum(axis=0)
+            if len(flexibility.reserve_gw)
+            else 0.0 * flexibility.shortfall_gw
+        )
+        tables["operating_reserve"] = index.assign(
+            requirement_mw=(flexibility.requirement_gw * 1000).ravel(),
+            provided_mw=(provided * 1000).ravel(),
+            shortfall_mw=(flexibility.shortfall_gw * 1000).ravel(),
+            price_per_mw_hour=flexibility.reserve_price_per_mw_hour.ravel(),
+        )
+        tables["reserve_provision"] = by_technology(
+            flexibility.reserve_holders, {"reserve_mw": flexibility.reserve_gw}, RESERVE_PROVISION_COLUMNS
+        )
+    return tables
+
+
+# ------------------------------------------------------------------------------------------------ calibration
+CALIBRATION_COLUMNS = [
+    "quantity",
+    "subject",
+    "unit",
+    "statistic",
+    "model",
+    "difference",
+    "relative_difference",
+    "source",
+]
+_FUEL_USES = ("power_input", "conversion_input", "final_use")
+
+
+def base_year_calibration_table(
+    values: SolutionValues,
+    electricity: pd.DataFrame,
+    fuel_flows: pd.DataFrame,
+    emissions_total: pd.DataFrame,
+) -> pd.DataFrame:
+    """``base_year_calibration``: each base-year statistic of the scenario beside the model's base-year value, in
+    its unit (generation TWh/yr, fuel use PJ/yr, emissions MtCO2/yr), the difference (model - statistic) and the
+    relative difference (difference / statistic; NaN for a statistic of 0). Empty without statistics."""
+    statistics = values.inputs.base_year_statistics
+    if not statistics:
+        return pd.DataFrame(columns=CALIBRATION_COLUMNS)
+    base = int(values.inputs.years[0])
+    generation = electricity[(electricity["year"] == base)].groupby("technology")["generation_twh"].sum()
+    flows = fuel_flows[(fuel_flows["year"] == base) & fuel_flows["role"].isin(_FUEL_USES)]
+    fuel_use = flows.groupby("commodity")["energy_pj"].sum()
+    emissions = float(emissions_total.loc[emissions_total["year"] == base, "emissions_mtco2"].sum())
+    rows = []
+    for statistic in statistics:
+        if statistic.quantity == "generation":
+            model = float(generation.get(statistic.subject, 0.0))
+        elif statistic.quantity == "fuel_use":
+            model = float(fuel_use.get(statistic.subject, 0.0))
+        else:
+            model = emissions
+        difference = model - statistic.value
+        relative = difference / statistic.value if statistic.value > 0 else np.nan
+        rows.append(
+            (
+                statistic.quantity,
+                statistic.subject,
+                statistic.unit + "/yr",
+                statistic.value,
+                model,
+                difference,
+                relative,
+                statistic.source,
+            )
+        )
+    return pd.DataFrame(rows, columns=CALIBRATION_COLUMNS)
+
+
 # ----------------------------------------------------------------------------------------------- entry points
 def tables_from_values(values: SolutionValues) -> dict[str, pd.DataFrame]:
     """Every result table of a run (the names of :mod:`pathcast.results.run_result`) from its read-back values."""
@@ -385,6 +505,16 @@ def tables_from_values(values: SolutionValues) -> dict[str, pd.DataFrame]:
     emissions, emissions_total = emissions_tables(values)
     electricity_price, fuel_price, carbon_price = price_tables(values)
     extension = {"extension_constraints": extension_table(values)} if values.extension_rows else {}
+    calibration = (
+        {
+            "base_year_calibration": base_year_calibration_table(
+                values, electricity, fuel_flows, emissions_total
+            )
+        }
+        if values.inputs.base_year_statistics
+        else {}
+    )
+    recovery, vintages = cost_recovery_tables(values)
     return {
         "capacity": capacity,
         "storage_energy": storage_energy,
@@ -400,7 +530,12 @@ def tables_from_values(values: SolutionValues) -> dict[str, pd.DataFrame]:
         "fuel_price": fuel_price,
         "carbon_price": carbon_price,
         "lcoe": lcoe_table(values, capacity, electricity, fuel_price),
+        **calibration,
+        "capacity_price": capacity_price_table(values),
+        "cost_recovery": recovery,
+        "cost_recovery_vintages": vintages,
         **extension,
+        **flexibility_tables(values),
     }
 
 

@@ -5,7 +5,7 @@ Reports, analytics and writers read only this object (never the model). Tables:
 ========================  ============================================================================================
 table                     columns
 ========================  ============================================================================================
-capacity                  technology, kind, year, capacity_mw, new_mw, retired_mw, early_retired_mw
+capacity                  technology, kind, year, capacity_mw, new_mw, retired_mw, early_retired_mw, committed_mw
 storage_energy            technology, year, energy_capacity_mwh, new_mwh
 electricity               technology, kind, year, generation_twh, consumption_twh, capacity_factor, curtailed_twh
 electricity_hourly        year, day, hour, weight_days, technology, power_mw (supply > 0, consumption < 0;
@@ -21,6 +21,15 @@ electricity_price         year, day, hour, price_per_mwh        (from the hourly
 fuel_price                year, commodity, price_per_gj         (from the yearly fuel balance duals)
 carbon_price              year, carbon_price_per_tco2, from_budget_per_tco2, from_cap_per_tco2, from_path_per_tco2
 lcoe                      technology, year, lcoe_per_mwh, capacity_factor
+base_year_calibration     quantity, subject, unit, statistic, model, difference, relative_difference, source (only
+                          with base_year_statistics in the scenario)
+online_capacity           year, day, hour, technology, online_mw, generation_mw, min_output_mw (generators with
+                          operating limits only)
+operating_reserve         year, day, hour, requirement_mw, provided_mw, shortfall_mw, price_per_mw_hour (with
+                          policy.operating_reserve only)
+reserve_provision         year, day, hour, technology, reserve_mw (with policy.operating_reserve only)
+assumptions               section, subject, item, value, unit, source (display text: the inputs of a run of a scenario
+                          file, with their sources; results.assumptions)
 ========================  ============================================================================================
 """
 
@@ -32,7 +41,7 @@ from typing import Any
 
 import pandas as pd
 
-__all__ = ["RunResult", "TABLES", "OPTIONAL_TABLES"]
+__all__ = ["RunResult", "TABLES", "OPTIONAL_TABLES", "TEXT_TABLES"]
 
 TABLES = (
     "capacity",
@@ -50,8 +59,22 @@ TABLES = (
     "carbon_price",
     "lcoe",
 )
-# tables a run has only when it uses them: the rows of users' extensions (README, Extensions)
-OPTIONAL_TABLES = ("extension_constraints",)
+# tables a run has only when it uses them: the rows of users' extensions (README, Extensions), and the assumptions of a
+# run of a scenario file (absent from analysis variants and from result folders of earlier versions)
+# and the operating-flexibility tables (a run with operating limits or an operating reserve; README, the optimisation)
+# (the adequacy tables: capacity price, cost recovery and its vintages, are missing only in folders of earlier versions)
+OPTIONAL_TABLES = (
+    "capacity_price",
+    "cost_recovery",
+    "cost_recovery_vintages",
+    "extension_constraints",
+    "assumptions",
+    "online_capacity",
+    "operating_reserve",
+    "reserve_provision",
+    "base_year_calibration",
+)
+TEXT_TABLES = ("assumptions",)  # tables of display text: read back as text, empty cells as ""
 
 
 @dataclass(frozen=True)

@@ -8,7 +8,7 @@ currency/tCO2 equals million per MtCO2).
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 
 import numpy as np
 
@@ -23,7 +23,12 @@ __all__ = [
     "TechnologyInputs",
     "SupplyInputs",
     "FuelDemandInputs",
+    "OperatingReserveInputs",
+    "BaseYearStatistic",
     "prepare_inputs",
+    "credit_segments",
+    "credit_tranches",
+    "DEFAULT_CREDIT_BY_DURATION",
     "PJ_PER_GWH",
     "PJ_PER_GW_YEAR",
 ]
@@ -48,7 +53,11 @@ class TechnologyInputs:
     min_build_gw: np.ndarray  # [GW/yr]
     max_build_gw: np.ndarray  # [GW/yr], inf for none
     max_total_gw: np.ndarray  # [GW], inf for none; 0 from the phase-out year
-    capacity_credit: float = 0.0
+    capacity_credit: float = 0.0  # fixed share of capacity counted as firm [-]
+    # generators: credit tranches ((width [share of the year's peak demand], inf for the last), credit [-]) in order
+    credit_tranches: tuple[tuple[float, float], ...] = ()
+    # storage: firm contribution F <= a x power [GW] + b x energy [GWh] for every (a [-], b [1/h]) (credit by duration)
+    credit_segments: tuple[tuple[float, float], ...] = ()
     first_build_year: int | None = None  # no new builds before this year (max_build_gw is 0 there)
     phase_out_year: int | None = None  # nothing in service from this year on (max_total_gw is 0 there)
     # generator
@@ -56,6 +65,13 @@ class TechnologyInputs:
     efficiency: float = 1.0
     availability: np.ndarray | None = None  # [D, H] for generators and electricity-input converters
     clean: bool = False
+    variable_renewable: bool = False  # availability from an hourly profile (counts in the operating reserve)
+    # generator operating flexibility (model.flexibility): an online (committed) capacity per hour when
+    # ``operating_limits``
+    operating_limits: bool = False
+    min_stable_output: float = 0.0  # [share of online capacity]
+    ramp_rate: float | None = None  # [share of online capacity per hour], None for no limit
+    provides_reserve: bool = False  # generators: online headroom counts; storage: headroom counts
     # storage
     energy_capex: np.ndarray | None = None  # [million currency / GWh] = [currency/kWh]
     energy_fixed_om: float = 0.0
@@ -69,6 +85,25 @@ class TechnologyInputs:
     output: str | None = None
     process_emission_factor: float = 0.0  # [MtCO2/PJ output] = [tCO2/GJ]
     converter_availability: float = 1.0
+    # the starting year and the speed of change (every kind)
+    committed_gw: np.ndarray | None = None  # [Y] committed projects in service from each year [GW/yr]; None: none
+    committed_energy_gwh: np.ndarray | None = None  # [Y] storage: their energy capacity [GWh/yr]
+    earliest_new_year: int | None = None  # first year a build that is not committed can be in service
+    lead_time_years: int | None = None  # [yr] as given in the scenario
+    build_growth_factor: float | None = None  # [-] new[y] <= seed + factor x new[y-1] (+ committed); None: no limit
+    build_growth_seed_gw: float = 0.0  # [GW/yr]
+    max_early_retirement_gw: float = math.inf  # [GW/yr] growth of capacity retired early, inf for none
+
+
+@dataclass(frozen=True)
+class BaseYearStatistic:
+    """One published figure of the base year, to compare with the model's base-year dispatch."""
+
+    quantity: str  # "generation" [TWh/yr], "fuel_use" [PJ/yr] or "emissions" [MtCO2/yr]
+    subject: str  # the generator, the fuel, or "total"
+    unit: str  # "TWh", "PJ" or "MtCO2" (per year)
+    value: float
+    source: str = ""
 
 
 @dataclass(frozen=True)
@@ -86,6 +121,16 @@ class FuelDemandInputs:
     name: str
     served_by: tuple[str, ...]
     demand_pj: np.ndarray  # [PJ/yr]
+
+
+@dataclass(frozen=True)
+class OperatingReserveInputs:
+    """Hourly upward operating reserve: demand_share x demand + variable_renewable_share x available output of
+    profile-driven generators [GW], held by online generators and storage (model.flexibility)."""
+
+    demand_share: float  # [-]
+    variable_renewable_share: float  # [-]
+    duration_h: float  # [h] storage must sustain the reserve it holds this long from its state of charge
 
 
 @dataclass(frozen=True)
@@ -110,12 +155,13 @@ class ModelInputs:
     fuel_demands: tuple[FuelDemandInputs, ...]
     value_of_lost_load: float  # [million currency / GWh]
     value_of_unserved_fuel: float  # [million currency / PJ]
-    reserve_margin: float
+    reserve_margin: float | None  # [-] firm capacity above peak demand; None: no reserve-margin row
     budget_mt: float | None
     budget_years: tuple[int, int] | None
     emission_caps_mt: dict[int, float]
     carbon_price: np.ndarray  # [currency/tCO2] by year
     clean_share: np.ndarray | None  # [-] by year, NaN where no target
+    operating_reserve: OperatingReserveInputs | None = None  # None: no operating-reserve rows
     solver: dict = field(default_factory=dict)
     # Analysis overrides, empty by default (set with dataclasses.replace by pathcast.analysis, never by a scenario file):
     # column_bounds: {variable block name: (lower, upper)}, arrays shaped like the block in its own units, NaN where the
@@ -127,6 +173,9 @@ class ModelInputs:
     # extensions: users' rules (pathcast.model.extension), applied to every LP built from these inputs, so that
     # analyses and ensemble members that re-solve a variant keep them; set by pathcast.pipeline.run_scenario.
     extensions: tuple[ExtensionSpec, ...] = ()
+    # the base year: False: existing fleet and committed projects only (metadata.new_builds_in_base_year)
+    new_builds_in_base_year: bool = False
+    base_year_statistics: tuple[BaseYearStatistic, ...] = ()
 
     @property
     def hours(self) -> int:
@@ -158,6 +207,48 @@ def _limits(t, years: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
     return min_build, max_build, max_total
 
 
+def _starting_year_and_pace(
+    t: TechnologyInputs, spec, years: np.ndarray, builds_in_base_year: bool
+) -> TechnologyInputs:
+    """``t`` with its committed projects, the years only committed projects can come into service in (the base
+    year, unless ``builds_in_base_year``, and the years of its lead time), its build growth and its early-retirement
+    limits, from the scenario's technology ``spec``."""
+    lead = spec.lead_time_years
+    earliest = int(years[0]) + max(lead or 0, 0 if builds_in_base_year else 1)
+    early = years < earliest
+    committed = np.zeros(len(years))
+    energy = np.zeros(len(years))
+    for project in spec.committed:
+        at = years == project.in_service_year
+        committed[at] += project.capacity_mw / 1000.0
+        energy[at] += project.energy_mwh / 1000.0
+    growth = spec.max_build_growth
+    limit = spec.max_early_retirement_mw_per_year
+    return replace(
+        t,
+        min_build_gw=np.where(early, 0.0, t.min_build_gw),
+        max_build_gw=np.where(early, 0.0, t.max_build_gw),
+        committed_gw=committed,
+        committed_energy_gwh=energy if t.kind == "storage" else None,
+        earliest_new_year=earliest,
+        lead_time_years=lead,
+        build_growth_factor=None if growth is None else float(growth.factor),
+        build_growth_seed_gw=0.0 if growth is None else growth.seed_mw / 1000.0,
+        max_early_retirement_gw=math.inf if limit is None else limit / 1000.0,
+    )
+
+
+def _base_year_statistics(s: Scenario) -> tuple[BaseYearStatistic, ...]:
+    stats = s.base_year_statistics
+    if stats is None:
+        return ()
+    out = [BaseYearStatistic("generation", n, "TWh", float(v), stats.source) for n, v in stats.generation_twh.items()]
+    out += [BaseYearStatistic("fuel_use", n, "PJ", float(v), stats.source) for n, v in stats.fuel_use_pj.items()]
+    if stats.emissions_mtco2 is not None:
+        out.append(BaseYearStatistic("emissions", "total", "MtCO2", float(stats.emissions_mtco2), stats.source))
+    return tuple(out)
+
+
 def _existing(t, years: np.ndarray, attribute: str, scale: float) -> np.ndarray:
     out = np.zeros(len(years))
     for e in t.existing:
@@ -180,6 +271,51 @@ def _common(t, years: np.ndarray, rate: float) -> dict:
         max_total_gw=max_t,
         first_build_year=t.first_build_year,
         phase_out_year=t.phase_out_year,
+    )
+
+
+# Storage credit by hours of duration when the scenario gives none: full credit at 4 hours, pro rata below (the
+# "4-hour rule" of resource-adequacy practice, from memory); that credit rises with duration and saturates is the
+# finding of Sioshansi, Madaeni & Denholm (2014), IEEE Trans. Power Systems 29(1), 395-403 (secondary).
+DEFAULT_CREDIT_BY_DURATION: dict[float, float] = {4.0: 1.0}
+
+
+def credit_segments(table: dict[float, float] | None) -> tuple[tuple[float, float], ...]:
+    """The linear pieces of a concave credit-by-duration curve as (a, b): firm <= a x power + b x energy.
+
+    credit(d) runs linearly through (0, 0) and the table's points, flat after the last; P x credit(E/P) is then the
+    minimum over pieces of a_j P + b_j E (the perspective of a concave piecewise-linear function), so the firm
+    contribution of a store stays linear in its power P [GW] and energy E [GWh]."""
+    points = sorted((DEFAULT_CREDIT_BY_DURATION if table is None else table).items())
+    if points[0][0] > 0:
+        points = [(0.0, 0.0), *points]
+    pieces = []
+    for (d0, c0), (d1, c1) in zip(points, points[1:], strict=False):
+        slope = (c1 - c0) / (d1 - d0)
+        pieces.append((c0 - slope * d0, slope))
+    pieces.append((points[-1][1], 0.0))  # flat after the last point: firm <= credit x power
+    return tuple(pieces)
+
+
+def credit_tranches(tranches) -> tuple[tuple[float, float], ...]:
+    """(width as a share of the year's peak demand, credit) of each tranche; the last tranche's width is inf."""
+    out, start = [], 0.0
+    for tranche in tranches:
+        end = math.inf if tranche.up_to_share_of_peak is None else float(tranche.up_to_share_of_peak)
+        out.append((end - start, float(tranche.credit)))
+        start = end
+    return tuple(out)
+
+
+def _flexibility(g) -> dict:
+    """A generator's operating limits (schema fields min_stable_output, ramp_rate, provides_reserve): any of them
+    gives it an online (committed) capacity per hour; it then provides reserve unless it says not to."""
+    limits = g.min_stable_output is not None or g.ramp_rate is not None or g.provides_reserve is True
+    return dict(
+        operating_limits=limits,
+        min_stable_output=float(g.min_stable_output or 0.0),
+        ramp_rate=None if g.ramp_rate is None else float(g.ramp_rate),
+        provides_reserve=limits and g.provides_reserve is not False,
     )
 
 
@@ -219,7 +355,11 @@ def prepare_inputs(s: Scenario) -> ModelInputs:
             profile_driven = False
         efficiency = g.efficiency if g.efficiency is not None else (3.6 / g.heat_rate if g.heat_rate else 1.0)
         credit = g.capacity_credit
-        if credit is None:
+        tranches: tuple[tuple[float, float], ...] = ()
+        if g.capacity_credit_tranches:
+            tranches = credit_tranches(g.capacity_credit_tranches)
+            credit = 0.0
+        elif credit is None:
             credit = 0.0 if profile_driven else float(availability.mean())
         clean = g.clean if g.clean is not None else (g.fuel is None or ef.get(g.fuel, 0.0) == 0.0)
         techs.append(
@@ -228,10 +368,13 @@ def prepare_inputs(s: Scenario) -> ModelInputs:
                 kind="generator",
                 **_common(g, years, rate),
                 capacity_credit=credit,
+                credit_tranches=tranches,
                 fuel=g.fuel,
                 efficiency=efficiency,
                 availability=availability,
                 clean=clean,
+                variable_renewable=profile_driven,
+                **_flexibility(g),
             )
         )
     for name, st in s.technologies.storage.items():
@@ -241,7 +384,10 @@ def prepare_inputs(s: Scenario) -> ModelInputs:
                 name=name,
                 kind="storage",
                 **_common(st, years, rate),
-                capacity_credit=st.capacity_credit,
+                capacity_credit=st.capacity_credit or 0.0,
+                credit_segments=()
+                if st.capacity_credit is not None
+                else credit_segments(st.credit_by_duration),
                 energy_capex=_capex_array(st.energy_capex, years),
                 energy_fixed_om=st.energy_fixed_om,
                 existing_energy_gwh=_existing(st, years, "energy_mwh", 1e-3),
@@ -250,6 +396,7 @@ def prepare_inputs(s: Scenario) -> ModelInputs:
                 min_duration_h=st.min_duration_hours,
                 max_duration_h=st.max_duration_hours if st.max_duration_hours is not None else math.inf,
                 clean=True,
+                provides_reserve=st.provides_reserve,
             )
         )
     for name, c in s.technologies.converters.items():
@@ -304,6 +451,20 @@ def prepare_inputs(s: Scenario) -> ModelInputs:
         if isinstance(pol.clean_electricity_share, dict):
             clean_share = np.where(years < min(pol.clean_electricity_share), np.nan, clean_share)
 
+    specs = {**s.technologies.generators, **s.technologies.storage, **s.technologies.converters}
+    techs = [
+        _starting_year_and_pace(t, specs[t.name], years, meta.new_builds_in_base_year) for t in techs
+    ]
+
+    reserve = pol.operating_reserve
+    operating_reserve = None
+    if reserve is not None:
+        operating_reserve = OperatingReserveInputs(
+            demand_share=reserve.demand_share,
+            variable_renewable_share=reserve.variable_renewable_share,
+            duration_h=reserve.duration_hours,
+        )
+
     solver = s.solver.model_dump()
     return ModelInputs(
         name=meta.name,
@@ -330,5 +491,8 @@ def prepare_inputs(s: Scenario) -> ModelInputs:
         emission_caps_mt=dict(pol.emission_caps_mt),
         carbon_price=path_values(pol.carbon_price, years),
         clean_share=clean_share,
+        operating_reserve=operating_reserve,
         solver=solver,
+        new_builds_in_base_year=meta.new_builds_in_base_year,
+        base_year_statistics=_base_year_statistics(s),
     )

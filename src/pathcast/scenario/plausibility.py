@@ -322,6 +322,19 @@ class _Checker:
         self.array((*base, "min_build_mw_per_year"), t.min_build_gw, _BUILD, year_axis=0)
         self.array((*base, "max_build_mw_per_year"), t.max_build_gw, _BUILD_LIMIT, year_axis=0)
         self.array((*base, "max_total_mw"), t.max_total_gw, _POWER_LIMIT, year_axis=0)
+        for k, project in enumerate(_scenario_value(self.scenario, (*base, "committed")) or []):
+            self.value((*base, "committed", k, "capacity_mw"), project.capacity_mw / 1000.0, _POWER)
+            self.value(
+                (*base, "committed", k, "energy_mwh"),
+                project.energy_mwh / 1000.0,
+                Bound(0.0, STORAGE_ENERGY_LIMIT_GWH, "MWh", 1000.0),
+            )
+        if t.committed_gw is not None:
+            self.array((*base, "committed"), t.committed_gw, _BUILD, year_axis=0)
+        self.value((*base, "max_build_growth", "seed_mw"), t.build_growth_seed_gw, _BUILD)
+        self.value(
+            (*base, "max_early_retirement_mw_per_year"), t.max_early_retirement_gw, _BUILD_LIMIT
+        )
         credit = Bound(0.0, 1.0, "")
         self.value((*base, "capacity_credit"), t.capacity_credit, credit)
         efficiency_field = "efficiency"
@@ -373,7 +386,8 @@ class _Checker:
     def policy(self) -> None:
         i = self.inputs
         pol = ("policy",)
-        self.value((*pol, "reserve_margin"), i.reserve_margin, Bound(0.0, 2.0, ""))
+        if i.reserve_margin is not None:
+            self.value((*pol, "reserve_margin"), i.reserve_margin, Bound(0.0, 2.0, ""))
         if i.budget_mt is not None:
             self.value((*pol, "carbon_budget", "total_mt"), i.budget_mt, Bound(0.0, BUDGET_LIMIT_MT, "MtCO2"))
         for year, cap in i.emission_caps_mt.items():

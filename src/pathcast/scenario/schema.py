@@ -43,9 +43,13 @@ __all__ = [
     "Converter",
     "Supply",
     "ExistingCapacity",
+    "CommittedProject",
+    "BuildGrowth",
+    "BaseYearStatistics",
     "CapexPath",
     "Policy",
     "CarbonBudget",
+    "OperatingReserve",
     "SolverSettings",
     "Extension",
     "ELECTRICITY",
@@ -169,6 +173,11 @@ class Metadata(_Strict):
     )
     illustrative: bool = Field(
         False, description="True when the numbers are invented (the demo); memos say so."
+    )
+    new_builds_in_base_year: bool = Field(
+        False,
+        description="False: the base year is the country as it is, its existing fleet and committed projects "
+        "only; true: the base year is optimised like the others (greenfield and screening studies).",
     )
 
     @field_validator("name")
@@ -311,6 +320,47 @@ class ExistingCapacity(_Strict):
     energy_mwh: MegawattHours = Field(0.0, description="Storage only: energy capacity [MWh].")
 
 
+class CommittedProject(_Strict):
+    """A project already decided (financed, under construction): it comes into service in ``in_service_year``
+    whatever the optimisation finds, and counts as a build of that year (its investment is in the costs)."""
+
+    capacity_mw: Megawatts = Field(description="Capacity the project adds [MW].")
+    in_service_year: Year = Field(
+        description="First year the project is in service, from metadata.base_year to metadata.final_year."
+    )
+    energy_mwh: MegawattHours = Field(
+        0.0,
+        description="Storage only: energy capacity the project adds [MWh], within the technology's shortest and "
+        "longest duration.",
+    )
+    description: str = Field("", description="Free text (project name, source).")
+
+
+class BuildGrowth(_Strict):
+    """How fast the yearly builds of a technology can grow: new[y] <= seed_mw + factor x new[y-1] (committed
+    projects come on top)."""
+
+    factor: Annotated[float, Field(ge=1, le=10)] = Field(
+        description="Largest ratio of one year's builds to the previous year's [-], at least 1."
+    )
+    seed_mw: Megawatts = Field(
+        description="Builds possible in any year whatever was built the year before [MW/yr]: the size of the "
+        "industry that a technology starts from."
+    )
+
+
+class CreditTranche(_Strict):
+    """One tranche of a generator's capacity with its own capacity credit: capacity up to ``up_to_share_of_peak`` x
+    the year's peak demand (counted from the previous tranche's end) earns ``credit``."""
+
+    up_to_share_of_peak: Annotated[float, Field(gt=0, le=10)] | None = Field(
+        None,
+        description="Where the tranche ends, as a share of the year's peak demand [-]; none for the last tranche, "
+        "which takes all capacity beyond the others.",
+    )
+    credit: Fraction = Field(description="Capacity credit of the capacity in this tranche [-].")
+
+
 class _Technology(_Strict):
     description: str = Field("", description="Free text.")
     capex: Capex = Field(description="Overnight investment [currency/kW] or a capex path.")
@@ -332,6 +382,26 @@ class _Technology(_Strict):
     first_build_year: Year | None = Field(None, description="No new builds before this year.")
     phase_out_year: Year | None = Field(
         None, description="No capacity in service from this year on (existing included)."
+    )
+    committed: list[CommittedProject] = Field(
+        default_factory=list,
+        description="Projects already decided, each with its capacity [MW] and in-service year; the only new "
+        "capacity of the base year.",
+    )
+    lead_time_years: Annotated[int, _whole("number of years", 0, 100), Field(ge=0, le=100)] | None = Field(
+        None,
+        description="Years from a decision taken in the base year to service [yr]: builds other than committed "
+        "projects from metadata.base_year + lead_time_years on (and never in the base year itself); at most the "
+        "horizon. Default: from the year after the base year.",
+    )
+    max_build_growth: BuildGrowth | None = Field(
+        None,
+        description="Limit on how fast the yearly builds can grow: {factor, seed_mw} (README, the optimisation).",
+    )
+    max_early_retirement_mw_per_year: Megawatts | None = Field(
+        None,
+        description="Capacity retired before the end of its life (existing fleet or builds) grows by at most this "
+        "much a year [MW/yr]; none means unlimited.",
     )
 
 
@@ -355,8 +425,30 @@ class Generator(_Technology):
         description="Share of capacity counted toward the reserve margin [-]; default: the constant availability for "
         "dispatchable plants, 0 for profile-driven ones (common practice, no source).",
     )
+    capacity_credit_tranches: list[CreditTranche] | None = Field(
+        None,
+        description="Capacity credit that falls as more is built: tranches of capacity, each up to a share of the "
+        "year's peak demand, with credits that do not rise from one tranche to the next; replaces capacity_credit "
+        "(README, reserve margin).",
+    )
     clean: bool | None = Field(
         None, description="Counts toward the clean-electricity share; default: burns no fossil carbon."
+    )
+    min_stable_output: Fraction | None = Field(
+        None,
+        description="Lowest output of the online (committed) capacity [share of online capacity, 0-1]: the "
+        "generator gets an online capacity in every hour, between 0 and availability x capacity in service, and "
+        "produces between this share of it and all of it (README, operating flexibility).",
+    )
+    ramp_rate: Fraction | None = Field(
+        None,
+        description="Largest change of output from one hour to the next [share of online capacity per hour, 0-1]; "
+        "gives the generator an online capacity like min_stable_output (README, operating flexibility).",
+    )
+    provides_reserve: bool | None = Field(
+        None,
+        description="Headroom of its online capacity counts toward policy.operating_reserve; default: true for a "
+        "generator with min_stable_output or ramp_rate, false otherwise (true gives it an online capacity).",
     )
 
     @model_validator(mode="after")
@@ -380,12 +472,24 @@ class Storage(_Technology):
     round_trip_efficiency: Annotated[float, Field(gt=0, le=1)] = Field(
         description="Energy out / energy in [-]."
     )
-    capacity_credit: Fraction = Field(
-        0.0, description="Share of power capacity counted toward the reserve margin [-]."
+    capacity_credit: Fraction | None = Field(
+        None,
+        description="A fixed share of power capacity counted toward the reserve margin, whatever the energy "
+        "duration [-]; default: the credit follows the duration (credit_by_duration).",
+    )
+    credit_by_duration: dict[Annotated[float, Field(gt=0, le=1000)], Fraction] | None = Field(
+        None,
+        description="Capacity credit by hours of energy duration {hours: credit}, linear between the points, from "
+        "0 at 0 h, flat after the last; credits must rise ever more slowly. Default {4: 1.0}: full credit at 4 h of "
+        "duration, pro rata below (the 4-hour rule of resource-adequacy practice; from memory).",
     )
     min_duration_hours: Annotated[float, Field(ge=0)] = Field(0.0, description="Energy / power at least [h].")
     max_duration_hours: Annotated[float, Field(gt=0)] | None = Field(
         None, description="Energy / power at most [h]."
+    )
+    provides_reserve: bool = Field(
+        True,
+        description="Headroom of its power (and energy to sustain it) counts toward policy.operating_reserve.",
     )
 
 
@@ -428,6 +532,25 @@ class CarbonBudget(_Strict):
     last_year: Year | None = Field(None, description="Last year counted; default metadata.final_year.")
 
 
+class OperatingReserve(_Strict):
+    """Upward operating reserve held in every representative hour: headroom of online generators that provide
+    reserve and of storage (README, operating flexibility)."""
+
+    demand_share: Fraction = Field(
+        0.0, description="Reserve per unit of the hour's electricity demand [share of demand, 0-1]."
+    )
+    variable_renewable_share: Fraction = Field(
+        0.0,
+        description="Reserve per unit of the hour's available output of generators with an hourly availability "
+        "profile (wind, solar, run-of-river) [share of available output, 0-1].",
+    )
+    duration_hours: Annotated[float, Field(gt=0, le=24)] = Field(
+        1.0,
+        description="Hours storage must be able to sustain the reserve it holds, from its state of charge [h]. "
+        "Default 1 h: common practice, no source.",
+    )
+
+
 class Policy(_Strict):
     carbon_budget: CarbonBudget | None = None
     emission_caps_mt: dict[int, Annotated[float, _quantity("MtCO2"), Field(ge=0)]] = Field(
@@ -440,9 +563,15 @@ class Policy(_Strict):
         None,
         description="Minimum share of electricity demand met by clean generators, path from its first year [-].",
     )
-    reserve_margin: Annotated[float, Field(ge=0, le=2)] = Field(
+    reserve_margin: Annotated[float, Field(ge=0, le=2)] | None = Field(
         0.15,
-        description="Firm capacity above the year's peak demand [-]. Default 15 %: common practice, no source.",
+        description="Firm capacity above the year's peak demand [-]; null for no reserve-margin row at all (0 keeps "
+        "the row: firm capacity of at least the peak). Default 15 %: common practice, no source.",
+    )
+    operating_reserve: OperatingReserve | None = Field(
+        None,
+        description="Hourly upward operating reserve {demand_share, variable_renewable_share, duration_hours}; none "
+        "for no reserve rows (README, operating flexibility).",
     )
 
 
@@ -475,6 +604,24 @@ class Extension(_Strict):
     )
 
 
+class BaseYearStatistics(_Strict):
+    """Published figures of the base year (energy balance, inventory) to compare with the model's base-year
+    dispatch: the run reports each difference in the table base_year_calibration."""
+
+    source: str = Field("", description="Where the statistics come from (publication, table, year).")
+    generation_twh: dict[str, Annotated[float, _quantity("TWh"), Field(ge=0)]] = Field(
+        default_factory=dict, description="Electricity generated by each generator in the base year [TWh/yr]."
+    )
+    fuel_use_pj: dict[str, Annotated[float, _quantity("PJ"), Field(ge=0)]] = Field(
+        default_factory=dict,
+        description="Use of each fuel in the base year: burned in power plants, converted and delivered to final "
+        "demand [PJ/yr].",
+    )
+    emissions_mtco2: Annotated[float, _quantity("MtCO2"), Field(ge=0)] | None = Field(
+        None, description="CO2 emitted in the base year, all sources [MtCO2/yr]."
+    )
+
+
 class Scenario(_Strict):
     metadata: Metadata
     time: TimeStructure
@@ -485,4 +632,9 @@ class Scenario(_Strict):
     solver: SolverSettings = Field(default_factory=SolverSettings)
     extensions: list[Extension] = Field(
         default_factory=list, description="Users' own rules in Pyomo, applied in order (README, Extensions)."
+    )
+    base_year_statistics: BaseYearStatistics | None = Field(
+        None,
+        description="Published base-year figures to compare with the model's base year (table "
+        "base_year_calibration).",
     )

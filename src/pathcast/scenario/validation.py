@@ -204,6 +204,69 @@ def check_scenario(loaded: LoadedScenario) -> None:
                 "at least min_duration_hours",
             )
 
+    # --- the starting year and the speed of change ----------------------------------------------------------------
+    horizon = meta.final_year - meta.base_year
+    for kind, group in (
+        ("generators", tech.generators),
+        ("storage", tech.storage),
+        ("converters", tech.converters),
+    ):
+        for name, t in group.items():
+            path = ("technologies", kind, name)
+            if t.lead_time_years is not None and t.lead_time_years > horizon:
+                fail(
+                    path + ("lead_time_years",),
+                    t.lead_time_years,
+                    f"at most {horizon} years (metadata.final_year - metadata.base_year), so that the technology can "
+                    "be built inside the horizon",
+                )
+            for i, project in enumerate(t.committed):
+                where = path + ("committed", i)
+                year = project.in_service_year
+                if not meta.base_year <= year <= meta.final_year:
+                    fail(
+                        where + ("in_service_year",),
+                        year,
+                        f"a year from metadata.base_year {meta.base_year} to metadata.final_year {meta.final_year}",
+                    )
+                if t.first_build_year is not None and year < t.first_build_year:
+                    fail(
+                        where + ("in_service_year",),
+                        year,
+                        f"a year from first_build_year {t.first_build_year} on (or an earlier first_build_year)",
+                    )
+                if t.phase_out_year is not None and year >= t.phase_out_year:
+                    fail(
+                        where + ("in_service_year",),
+                        year,
+                        f"a year before phase_out_year {t.phase_out_year}",
+                    )
+                if kind != "storage" and project.energy_mwh > 0:
+                    fail(where + ("energy_mwh",), project.energy_mwh, "0 (energy capacity is for storage only)")
+                if kind == "storage" and project.capacity_mw > 0:
+                    hours = project.energy_mwh / project.capacity_mw
+                    longest = t.max_duration_hours
+                    if hours < t.min_duration_hours or (longest is not None and hours > longest):
+                        fail(
+                            where + ("energy_mwh",),
+                            project.energy_mwh,
+                            f"energy of {t.min_duration_hours:g} to "
+                            f"{'any number of' if longest is None else format(longest, 'g')} hours of its "
+                            f"{project.capacity_mw:g} MW (min_duration_hours, max_duration_hours)",
+                        )
+    statistics = s.base_year_statistics
+    if statistics is not None:
+        generators = sorted(tech.generators)
+        for name in statistics.generation_twh:
+            if name not in tech.generators:
+                fail(
+                    ("base_year_statistics", "generation_twh", name),
+                    name,
+                    f"one of the generators {generators}{did_you_mean(str(name), generators)}",
+                )
+        for name in statistics.fuel_use_pj:
+            known_commodity(("base_year_statistics", "fuel_use_pj", name), name, allow_electricity=False)
+
     # --- demand ----------------------------------------------------------------------------------------------------
     for name, fd in s.demand.fuels.items():
         for i, c in enumerate(fd.served_by):
@@ -229,18 +292,91 @@ def check_scenario(loaded: LoadedScenario) -> None:
     elif pol.clean_electricity_share is not None and not 0 <= pol.clean_electricity_share <= 1:
         fail(("policy", "clean_electricity_share"), pol.clean_electricity_share, "a share between 0 and 1")
 
-    if pol.reserve_margin > 0:
+    # --- capacity credits: tranches and credit by duration ----------------------------------------------------------
+    for name, g in tech.generators.items():
+        path = ("technologies", "generators", name)
+        if g.capacity_credit_tranches is None:
+            continue
+        tranches = g.capacity_credit_tranches
+        where = path + ("capacity_credit_tranches",)
+        if g.capacity_credit is not None:
+            fail(
+                path + ("capacity_credit",),
+                g.capacity_credit,
+                "no fixed capacity_credit beside capacity_credit_tranches",
+            )
+        if not tranches:
+            fail(where, [], "at least one tranche")
+        if tranches[-1].up_to_share_of_peak is not None:
+            fail(
+                where + (len(tranches) - 1, "up_to_share_of_peak"),
+                tranches[-1].up_to_share_of_peak,
+                "none in the last tranche, so that the tranches cover all capacity that can be built",
+            )
+        for i, tranche in enumerate(tranches[:-1]):
+            if tranche.up_to_share_of_peak is None:
+                fail(
+                    where + (i, "up_to_share_of_peak"),
+                    None,
+                    "a share of peak demand in every tranche but the last",
+                )
+            if i and tranche.up_to_share_of_peak <= tranches[i - 1].up_to_share_of_peak:
+                fail(
+                    where + (i, "up_to_share_of_peak"),
+                    tranche.up_to_share_of_peak,
+                    f"a share above the previous tranche's {tranches[i - 1].up_to_share_of_peak!r}",
+                )
+        for i in range(1, len(tranches)):
+            if tranches[i].credit > tranches[i - 1].credit:
+                fail(
+                    where + (i, "credit"),
+                    tranches[i].credit,
+                    f"a credit of at most the previous tranche's {tranches[i - 1].credit!r} (credits fall as more "
+                    "is built; rising credits would fill the later tranches first)",
+                )
+    for name, st in tech.storage.items():
+        path = ("technologies", "storage", name)
+        table = st.credit_by_duration
+        if table is None:
+            continue
+        if st.capacity_credit is not None:
+            fail(
+                path + ("capacity_credit",),
+                st.capacity_credit,
+                "no fixed capacity_credit beside credit_by_duration",
+            )
+        if not table:
+            fail(path + ("credit_by_duration",), {}, "at least one {hours: credit} point")
+        points = [(0.0, 0.0), *sorted(table.items())]
+        slopes = [(c1 - c0) / (d1 - d0) for (d0, c0), (d1, c1) in zip(points, points[1:], strict=False)]
+        for i in range(1, len(slopes)):
+            if slopes[i] > slopes[i - 1] + 1e-12 or slopes[i] < 0:
+                hours = points[i + 1][0]
+                fail(
+                    path + ("credit_by_duration", hours),
+                    table[hours],
+                    "credits that rise with duration ever more slowly, never falling (a concave curve through 0 at "
+                    "0 h), so that the firm contribution stays linear",
+                )
+
+    if pol.reserve_margin is not None:
         credited = [
             g.capacity_credit
             for g in tech.generators.values()
-            if g.capacity_credit is None or g.capacity_credit > 0
+            if g.capacity_credit_tranches is None and (g.capacity_credit is None or g.capacity_credit > 0)
         ]
-        credited += [st.capacity_credit for st in tech.storage.values() if st.capacity_credit > 0]
+        credited += [
+            g for g in tech.generators.values() if any(t.credit > 0 for t in g.capacity_credit_tranches or ())
+        ]
+        credited += [
+            st for st in tech.storage.values() if st.capacity_credit is None or st.capacity_credit > 0
+        ]
         if not credited:
             fail(
                 ("policy", "reserve_margin"),
                 pol.reserve_margin,
-                "0, or some generator or storage with a capacity_credit above 0 to meet it",
+                "null (no reserve-margin row), or some generator or storage with a capacity credit above 0 to "
+                "meet it (a margin of 0 still asks for firm capacity of at least the peak)",
             )
 
     # --- extensions: the file must exist beside the scenario that names it ---------------------------------------
