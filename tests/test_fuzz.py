@@ -50,11 +50,7 @@ SLOW_SCENARIO = range(36, 286)
 SLOW_ENSEMBLE = range(1035, 1135)
 
 # case ids that still fail; they are being fixed in src/ (see the fuzz report), marked xfail(strict=False)
-KNOWN_FAILURES: set[str] = {
-    # an empty reference.yaml is reported as missing fields of budget.yaml, which extends it
-    "empty-parent",
-    "scenario-200",
-}
+KNOWN_FAILURES: set[str] = set()
 
 
 # cases the seeded loop found once, kept by hand so a change of the menu or of the demo files does not lose them

@@ -225,7 +225,7 @@ def _read_yaml(path: Path, referrer: tuple[Path, str] | None) -> dict[str, Any]:
         raise located_error(referrer[0], referrer[1], str(path), "an existing scenario file")
     data = read_yaml_document(path, "scenario")
     if data is None:
-        data = {}
+        raise located_error(path, "(top level)", "an empty file", "a mapping of sections (metadata, time, ...)")
     if not isinstance(data, dict):
         raise located_error(
             path, "(top level)", type(data).__name__, "a mapping of sections (metadata, time, ...)"
