@@ -20,27 +20,23 @@ def _size_key(size: str) -> tuple[int, int, int]:
     return tuple(int(p) for p in size.split("x"))
 
 
-def _fit(rows: list[dict]) -> dict | None:
+def _fit(rows: list[dict], key: str = "times") -> dict | None:
+    """Least-squares slopes of log(array LP time) and log(whole overhead) against log(years x hours), over the sizes
+    with the most technologies; ``key`` "cpu_times" fits the CPU times (None where a row has none)."""
     import numpy as np
 
     techs = max(_size_key(r["size"])[2] for r in rows)
-    pts = [
-        (
-            _size_key(r["size"])[0] * _size_key(r["size"])[1],
-            r["times"]["build_lp_s"],
-            r["times"]["build_lp_s"] + r["times"]["handoff_s"] + r["times"]["extract_s"],
-        )
-        for r in rows
-        if _size_key(r["size"])[2] == techs
-    ]
-    if len(pts) < 2:
+    chosen = [r for r in rows if _size_key(r["size"])[2] == techs]
+    if len(chosen) < 2 or any(key not in r for r in chosen):
         return None
-    x = np.log([p[0] for p in pts])
+    x = np.log([_size_key(r["size"])[0] * _size_key(r["size"])[1] for r in chosen])
+    build = [r[key]["build_lp_s"] for r in chosen]
+    overhead = [r[key]["build_lp_s"] + r[key]["handoff_s"] + r[key]["extract_s"] for r in chosen]
     return {
         "technologies": techs,
-        "points": len(pts),
-        "build": float(np.polyfit(x, np.log([p[1] for p in pts]), 1)[0]),
-        "overhead": float(np.polyfit(x, np.log([p[2] for p in pts]), 1)[0]),
+        "points": len(chosen),
+        "build": float(np.polyfit(x, np.log(build), 1)[0]),
+        "overhead": float(np.polyfit(x, np.log(overhead), 1)[0]),
     }
 
 
@@ -149,12 +145,13 @@ def write_report(
             "`--build-only`: every pathcast stage but the solve (extraction from an all-zero solution), median of "
             "*n* runs, alternating with a fresh highspy reading the same LP from MPS (no solve). Overhead = build LP "
             "+ hand-off + extract; CPU = the process's own CPU time (less sensitive to other programs on the "
-            "cores). Peak memory is VmHWM of each process.",
+            "cores). Peak memory is VmHWM of each process. *load average*: the machine's 1-minute load after the size's runs "
+            "(2 cores).",
             "",
             "| size | rows | columns | nonzeros | n | load | build LP | hand-off | extract | overhead [s] "
             "| overhead [us/row] | CPU [us/row] | before: wall / CPU [us/row] | peak MB pathcast | before: peak MB "
-            "| peak MB bare read | bare read [s] |",
-            "|" + "---|" * 17,
+            "| peak MB bare read | bare read [s] | load average |",
+            "|" + "---|" * 18,
         ]
         for r in build_rows:
             t, old = r["times"], old_build_by_size.get(r["size"], {})
@@ -165,14 +162,19 @@ def write_report(
                 f"| {r.get('cpu_overhead_us_per_row', math.nan):.1f} "
                 f"| {_f(old.get('overhead_us_per_row'), '.1f')} / {_f(old.get('cpu_overhead_us_per_row'), '.1f')} "
                 f"| {r['peak_rss_mb']:.0f} | {_f(old.get('peak_rss_mb'), '.0f')} "
-                f"| {r['bare_read_peak_rss_mb']:.0f} | {r['bare_read_s']:.2f} |"
+                f"| {r['bare_read_peak_rss_mb']:.0f} | {r['bare_read_s']:.2f} "
+                f"| {_f((r.get('load_average') or [None])[0], '.1f')} |"
             )
         out.append("")
+        cpu_fit = _fit(build_rows, "cpu_times")
         if fit:
             out.append(
                 f"Array LP build time grows as (years x hours)^{fit['build']:.2f}, the whole modelling overhead as "
-                f"(years x hours)^{fit['overhead']:.2f} (least-squares fit of the logs over {fit['points']} sizes "
-                f"with {fit['technologies']} technologies)."
+                f"(years x hours)^{fit['overhead']:.2f}"
+                + (f" (CPU time: ^{cpu_fit['build']:.2f} and ^{cpu_fit['overhead']:.2f})" if cpu_fit else "")
+                + f"; least-squares fits of the logs over {fit['points']} sizes with {fit['technologies']} "
+                "technologies. The overhead grows more slowly than the LP because results extraction has a fixed "
+                "part."
             )
             out.append("")
     extended = [r for r in build_rows if r.get("with_extension")]
@@ -299,21 +301,22 @@ def _demo_section(d: dict) -> list[str]:
         + (f"Beside it: {d['beside']}." if d.get("beside") else ""),
         "",
         "| run | load | build LP | hand-off | solve | extract | stages | command wall [s] | command CPU [s] "
-        "| peak MB | simplex iterations |",
-        "|" + "---|" * 11,
+        "| peak MB | simplex iterations | load average after |",
+        "|" + "---|" * 12,
     ]
     for i, r in enumerate(d["runs"], start=1):
         s = r["stages"]
         out.append(
             f"| {i} | "
             + " | ".join(f"{s[k]:.2f}" for k in stages)
-            + f" | {r['wall_s']:.1f} | {r['cpu_s']:.1f} | {r['peak_rss_mb']:.0f} | {r['iterations']['simplex']:,} |"
+            + f" | {r['wall_s']:.1f} | {r['cpu_s']:.1f} | {r['peak_rss_mb']:.0f} | {r['iterations']['simplex']:,} "
+            f"| {_f((r.get('load_average_after') or [None])[0], '.1f')} |"
         )
     m = d["median"]
     out.append(
         "| median | "
         + " | ".join(f"{m['stages'][k]:.2f}" for k in stages)
-        + f" | {m['wall_s']:.1f} | {m['cpu_s']:.1f} | {m['peak_rss_mb']:.0f} | |"
+        + f" | {m['wall_s']:.1f} | {m['cpu_s']:.1f} | {m['peak_rss_mb']:.0f} | | |"
     )
     lp = d["runs"][0]["lp"]
     out += [
