@@ -95,9 +95,10 @@ def write_report(
         "",
         "Produced by `benchmarks/run_benchmarks.py` (synthetic scenarios from `benchmarks/scenario_generator.py`), "
         "`benchmarks/demo_case.py` and `python benchmarks/run_benchmarks.py --report <json files> --demo <json>`. "
-        "Every number is from a run on this machine; with 2 cores, what runs on the other core moves a solve's time "
-        "by up to 15 per cent (the same LP and options: 410-476 s at national size), so compare the columns of one "
-        "row, which were measured side by side, alternately (see How these numbers were taken).",
+        "Every number is from a run on this machine. With 2 cores, what else runs moves a solve's time: by up to 15 per "
+        "cent on a quiet machine (the same LP and options: 410-476 s at national size), by up to 3x when other "
+        "sessions load both cores. Compare the columns of one row, which were measured side by side, "
+        "alternately, and prefer CPU times where both are given (see How these numbers were taken).",
         "",
         "The solve path is the one of commit 004e698: the array LP goes to HiGHS directly (`highs_lp`, `solve_lp`); "
         "Pyomo is imported only for users' extensions. Columns marked *before* are the old path (array LP -> flat "
