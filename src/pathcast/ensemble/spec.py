@@ -49,6 +49,7 @@ from pydantic import (
 from ..errors import ScenarioError, did_you_mean
 from ..scenario.loader import (
     LoadedScenario,
+    expected_text,
     load_scenario_mapping,
     located_error,
     read_scenario_mapping,
@@ -531,17 +532,11 @@ def _explain(error: ValidationError, data: dict, path: Path) -> ScenarioError:
         return located_error(
             path, loc, value, f"a 'distribution' (one of {list(DISTRIBUTIONS)}) or a list of 'values'"
         )
-    message = first["msg"]
-    for prefix in ("Value error, ", "Assertion failed, "):
-        message = message.removeprefix(prefix)
-    if kind == "literal_error":
-        message = message.replace("Input should be ", "one of ")
-    elif kind == "string_pattern_mismatch" and loc[-1] == "path":
-        message = "a dotted field path such as technologies.supplies.gas_import.price"
-    else:
-        message = message[0].lower() + message[1:] if message else "a valid value"
-        message = message.replace("input should be ", "")
-    return located_error(path, loc or "(top level)", value, message)
+    if kind == "string_pattern_mismatch" and loc[-1] == "path":
+        return located_error(
+            path, loc, value, "a dotted field path such as technologies.supplies.gas_import.price"
+        )
+    return located_error(path, loc or "(top level)", value, expected_text(first))
 
 
 def _aliases(model: type[BaseModel]) -> list[str]:

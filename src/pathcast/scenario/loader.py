@@ -31,6 +31,7 @@ __all__ = [
     "read_yaml_document",
     "read_scenario_mapping",
     "load_scenario_mapping",
+    "expected_text",
 ]
 
 Provenance = dict[tuple, Path]
@@ -225,7 +226,9 @@ def _read_yaml(path: Path, referrer: tuple[Path, str] | None) -> dict[str, Any]:
         raise located_error(referrer[0], referrer[1], str(path), "an existing scenario file")
     data = read_yaml_document(path, "scenario")
     if data is None:
-        raise located_error(path, "(top level)", "an empty file", "a mapping of sections (metadata, time, ...)")
+        raise located_error(
+            path, "(top level)", "an empty file", "a mapping of sections (metadata, time, ...)"
+        )
     if not isinstance(data, dict):
         raise located_error(
             path, "(top level)", type(data).__name__, "a mapping of sections (metadata, time, ...)"
@@ -469,15 +472,39 @@ def _explain(error: ValidationError, raw: dict, provenance: Provenance, default:
     while len(loc) > 1 and not _exists(raw, loc):
         loc = loc[:-1]
     value = value_at(raw, loc)
-    message = first["msg"]
+    return located_error(file, loc or "(top level)", value, expected_text(first))
+
+
+# pydantic's error types whose own text reads like program output, in the words of a scenario file
+_EXPECTED_BY_KIND = {
+    "int_parsing": "a whole number",
+    "int_parsing_size": "a whole number of ordinary size",
+    "int_from_float": "a whole number",
+    "int_type": "a whole number",
+    "float_parsing": "a number",
+    "float_type": "a number",
+    "dict_type": "a mapping of fields",
+    "model_type": "a mapping of fields",
+    "model_attributes_type": "a mapping of fields",
+    "list_type": "a list",
+    "string_type": "text",
+}
+
+
+def expected_text(error: dict) -> str:
+    """What a field expected, in words, from one pydantic error (its type and message)."""
+    kind = error["type"]
+    if kind in _EXPECTED_BY_KIND:
+        return _EXPECTED_BY_KIND[kind]
+    message = error["msg"]
     for prefix in ("Value error, ", "Assertion failed, "):
         message = message.removeprefix(prefix)
     if kind == "literal_error":
-        message = message.replace("Input should be ", "one of ")
-    else:
-        message = message[0].lower() + message[1:] if message else "a valid value"
-        message = message.replace("input should be ", "")
-    return located_error(file, loc or "(top level)", value, message)
+        return message.replace("Input should be ", "one of ")
+    if kind == "string_pattern_mismatch":
+        return "text of letters, digits, '_', '-' and '.' (starting with a letter or digit)"
+    message = message[0].lower() + message[1:] if message else "a valid value"
+    return message.replace("input should be ", "")
 
 
 def _exists(raw: Any, loc: tuple) -> bool:
