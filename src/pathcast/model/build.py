@@ -11,6 +11,7 @@ from .capacity import add_capacity
 from .context import BuildContext
 from .dispatch import add_dispatch, add_electricity_balance
 from .emissions import add_emissions
+from .flexibility import add_flexibility
 from .fuels import add_fuels
 from .linear_program import LinearProgram
 from .policy import add_policy
@@ -35,7 +36,8 @@ class PathwayModel:
 
 
 def build_linear_program(inputs: ModelInputs) -> PathwayModel:
-    """Fill the linear program family by family (capacity, dispatch, storage, fuels, emissions, policy)."""
+    """Fill the linear program family by family (capacity, dispatch, storage, fuels, emissions, policy,
+    flexibility)."""
     ctx = BuildContext(inputs)
     add_capacity(ctx)
     add_dispatch(ctx)
@@ -44,6 +46,7 @@ def build_linear_program(inputs: ModelInputs) -> PathwayModel:
     add_electricity_balance(ctx)
     add_emissions(ctx)
     add_policy(ctx)
+    add_flexibility(ctx)  # online capacity, ramps, operating reserve: nothing when the scenario has none
     model = PathwayModel(ctx)
     if inputs.extensions:  # users' rules in Pyomo, compiled into rows of this LP (imports Pyomo only then)
         from .extension import apply_extensions
