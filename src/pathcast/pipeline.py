@@ -15,7 +15,9 @@ import numpy as np
 
 from .errors import InfeasibleError, ScenarioError, SolverError
 from .model.build import PathwayModel, build_linear_program
-from .results.extract import extract_tables, headline_figures
+from .model.policy import PolicyValues
+from .model.solution_values import read_solution
+from .results.extract import headline_from_values, tables_from_values
 from .results.run_result import RunResult
 from .scenario.extensions import ExtensionSpec, extension_specs
 from .scenario.inputs import ModelInputs, prepare_inputs
@@ -32,6 +34,7 @@ __all__ = [
     "Run",
     "solver_options_from",
     "package_versions",
+    "overshoot_figures",
 ]
 
 Progress = Callable[[str], None]
@@ -49,13 +52,7 @@ class StageTimes:
 
     @property
     def total_s(self) -> float:
-        return (
-            self.load_s
-            + self.build_lp_s
-            + self.handoff_s
-            + self.solve_s
-            + self.extract_s
-        )
+        return self.load_s + self.build_lp_s + self.handoff_s + self.solve_s + self.extract_s
 
     def as_dict(self) -> dict[str, float]:
         out = {k: round(v, 4) for k, v in self.__dict__.items()}
@@ -145,8 +142,11 @@ def solve_inputs(
         check_optimal(model, solution, source or f"scenario {inputs.name!r}", say)
     started = time.perf_counter()
     say("reading results")
-    tables = extract_tables(model, solution)
-    summary = headline_figures(model, solution, tables)
+    values = read_solution(model, solution)
+    tables = tables_from_values(values)
+    summary = headline_from_values(values, tables)
+    if inputs.budget_overshoot_price is not None:
+        summary.update(overshoot_figures(values.policy, inputs.budget_overshoot_price))
     times.extract_s = time.perf_counter() - started
     highs = solution.highs
     info = highs.getInfo() if highs is not None else None
@@ -181,6 +181,18 @@ def solve_inputs(
         metadata or {"currency": inputs.currency, "price_year": inputs.price_year},
     )
     return Run(result=result, model=model, solution=solution, times=times)
+
+
+def overshoot_figures(policy: PolicyValues, price: float) -> dict[str, float]:
+    """The summary's figures of a priced budget overshoot: the overshoot [MtCO2], its price [currency/tCO2] and its
+    cost [million currency of the price year, undiscounted, paid in the budget's last year]."""
+    # solver tolerances leave no negative overshoot
+    overshoot = max(0.0, float(policy.budget_overshoot_mtco2))
+    return {
+        "budget_overshoot_mtco2": overshoot,
+        "budget_overshoot_price_per_tco2": float(price),
+        "budget_overshoot_cost_million": overshoot * float(price),
+    }
 
 
 def check_optimal(model: PathwayModel, solution: Solution, where: str, say: Progress | None = None) -> None:
@@ -221,10 +233,20 @@ def run_scenario(
     progress: Progress | None = None,
     inputs_hook: Callable[[ModelInputs], ModelInputs] | None = None,
     extensions: Sequence[ExtensionSpec] = (),
+    budget_overshoot_price: float | None = None,
 ) -> Run:
     """Load (unless given loaded), validate, build and solve one scenario; ``extensions`` are applied after the
-    scenario's own (``--extension`` on the command line)."""
+    scenario's own (``--extension`` on the command line).
+
+    ``budget_overshoot_price`` [currency/tCO2] (``--allow-overshoot``) relaxes the carbon budget: emissions above it
+    cost that price, paid in the budget's last year, and the summary gains the overshoot [MtCO2], its price and its
+    cost [million currency] (:func:`overshoot_figures`). ScenarioError for a negative price or a scenario without a
+    budget. ``inputs_hook`` sees the inputs last, just before the solve."""
     say = progress or (lambda _message: None)
+    if budget_overshoot_price is not None and not budget_overshoot_price >= 0:
+        raise ScenarioError(
+            f"--allow-overshoot {budget_overshoot_price!r}: expected a price >= 0 [currency/tCO2]."
+        )
     times = StageTimes()
     started = time.perf_counter()
     if isinstance(scenario, LoadedScenario):
@@ -243,6 +265,15 @@ def run_scenario(
     rules = (*extension_specs(loaded), *extensions)
     if rules:
         inputs = replace(inputs, extensions=rules)
+    if budget_overshoot_price is not None:
+        if inputs.budget_mt is None:
+            raise ScenarioError(
+                f"{loaded.path}: policy.carbon_budget: got none; expected a carbon budget for --allow-overshoot "
+                "to relax.",
+                file=str(loaded.path),
+                field="policy.carbon_budget",
+            )
+        inputs = replace(inputs, budget_overshoot_price=float(budget_overshoot_price))
     if inputs_hook is not None:
         inputs = inputs_hook(inputs)
     times.load_s = time.perf_counter() - started

@@ -18,8 +18,8 @@ import pytest
 from pathcast.analysis.delay import DELAY_COLUMNS, delayed_action
 from pathcast.analysis.stranded import rate_from_crf, remaining_balance_fraction, stranded_capacity
 from pathcast.cli import main
-from pathcast.commands.delay import render_text
 from pathcast.errors import ScenarioError
+from pathcast.report.console import render_delay as render_text
 from pathcast.results.run_result import RunResult
 from pathcast.scenario.inputs import prepare_inputs
 from pathcast.scenario.loader import load_scenario

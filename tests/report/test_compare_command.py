@@ -19,7 +19,9 @@ def test_compare_command(reference_folder, tmp_path, capsys):
         ["compare", str(reference_folder), str(DATA / "tiny.yaml"), "--out", str(out), "--json", "--quiet"]
     )
     assert code == 0
-    printed = json.loads(capsys.readouterr().out)
+    document = json.loads(capsys.readouterr().out)
+    assert document["schema_version"] == 1
+    printed = document["scenarios"]
     assert list(printed) == ["tiny_reference", "tiny"]
     assert printed["tiny"]["budget_exhaustion_year"] is None
     table = pd.read_csv(out / "comparison.csv", index_col="metric")

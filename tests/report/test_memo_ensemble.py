@@ -20,9 +20,9 @@ import shutil
 import pytest
 
 from pathcast.cli import main
-from pathcast.commands.memo import split_inputs
 from pathcast.errors import ScenarioError
 from pathcast.report.console import CAUTION
+from pathcast.report.memo_inputs import split_inputs
 from tests.conftest import DATA
 
 SECTION = "## Robustness across an ensemble"

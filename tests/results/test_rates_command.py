@@ -57,9 +57,10 @@ def test_rates_error_paths(tmp_path, capsys):
 
 
 def test_rates_error_paths_raise_one_sentence_errors(tiny_run, tmp_path):
-    from pathcast.commands.rates import load_result, start_years_from
     from pathcast.errors import ScenarioError
     from pathcast.results.budget import budget_terms
+    from pathcast.results.rates_report import start_years_from
+    from pathcast.results.sources import load_run as load_result
 
     with pytest.raises(
         ScenarioError, match=r"missing\.yaml: \(path\): got no such file or folder; expected a scenario YAML"

@@ -27,6 +27,7 @@ from __future__ import annotations
 import math
 from collections.abc import Callable, Sequence
 from dataclasses import dataclass, field
+from pathlib import Path
 
 import pandas as pd
 
@@ -39,7 +40,7 @@ from .achievability import BudgetDiagnosis, diagnose_budget
 from .stranded import stranded_capacity
 from .variants import fix_history, reference_inputs
 
-__all__ = ["DelayCase", "DelayStudy", "delayed_action", "DELAY_COLUMNS"]
+__all__ = ["DelayCase", "DelayStudy", "delayed_action", "delay_study", "default_start_years", "DELAY_COLUMNS"]
 
 Progress = Callable[[str], None]
 
@@ -246,3 +247,33 @@ def delayed_action(
         cases=tuple(cases[s] for s in starts),
         table=table,
     )
+
+
+def default_start_years(inputs: ModelInputs) -> list[int]:
+    """Every 5th year from the base year that lies inside the budget period (at least the budget's first year in the
+    horizon); none when the scenario has no budget."""
+    if inputs.budget_years is None:
+        return []
+    base, last = int(inputs.years[0]), min(inputs.budget_years[1], int(inputs.years[-1]))
+    return [y for y in range(base, last + 1, 5) if y >= inputs.budget_years[0]] or [
+        max(base, inputs.budget_years[0])
+    ]
+
+
+def delay_study(
+    scenario: str | Path,
+    start_years: Sequence[int] | None = None,
+    *,
+    solver: dict | None = None,
+    progress: Progress | None = None,
+) -> DelayStudy:
+    """What ``pathcast delay`` computes: the scenario file read, then :func:`delayed_action` for ``start_years``
+    (default :func:`default_start_years`)."""
+    from ..scenario.inputs import prepare_inputs
+    from ..scenario.loader import load_scenario
+
+    say = progress or (lambda _m: None)
+    say(f"reading {scenario}")
+    inputs = prepare_inputs(load_scenario(scenario).scenario)
+    starts = default_start_years(inputs) if start_years is None else list(start_years)
+    return delayed_action(inputs, starts, solver=solver, progress=progress)

@@ -10,7 +10,6 @@ output folder before the connection is made."""
 from __future__ import annotations
 
 import argparse
-import math
 import sys
 from pathlib import Path
 
@@ -84,26 +83,14 @@ def execute(args: argparse.Namespace) -> int:
         figures=not args.no_figures,
     )
     from ..ensemble.summary import summarise_ensemble
+    from ..report.console import render_ensemble
 
     summary = summarise_ensemble(run.out)
+    out, err = render_ensemble(run, summary)
+    print(out)
+    if err:
+        print(err, file=sys.stderr)
     s = summary.stats
-    print(
-        f"Ensemble {run.spec.name}: {s['members']} members ({run.unique} distinct scenarios), {s['solved']} solved, "
-        f"{s['failed']} failed, {s['pending']} not run; this run solved {run.solved_now} and skipped "
-        f"{run.skipped} in {run.wall_s:.1f} s ({run.mode}, {run.workers} worker{'s' if run.workers != 1 else ''})."
-    )
-    probability = s.get("probability_within_budget")
-    if probability is not None and not math.isnan(probability):
-        print(f"Probability of staying within the carbon budget: {probability:.0%}.")
-    failed = summary.members[summary.members["status"] == "failed"]
-    for row in failed.head(5).itertuples():
-        print(f"  member {row.member} ({row.role}): {row.error_type}: {row.error_message}", file=sys.stderr)
-    if len(failed) > 5:
-        print(
-            f"  ... and {len(failed) - 5} more failed members (see {run.out / 'tables' / 'members.csv'})",
-            file=sys.stderr,
-        )
-    print(f"Results written to {run.out}/")
     if s["solved"] == 0 and s["failed"]:
         return EXIT_INFEASIBLE if s["infeasible"] == s["failed"] else EXIT_SOLVER_FAILURE
     return 0

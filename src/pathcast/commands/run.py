@@ -1,19 +1,16 @@
 """Solve a scenario: least-cost yearly build-out of power and fuel supply, written to results/<scenario>/."""
 
+# computed by pathcast.analysis.achievability.run_checking_budget (the run and the verdict on its carbon budget),
+# rendered by pathcast.report.console and pathcast.report.json_output
+
 from __future__ import annotations
 
 import argparse
 import sys
-from dataclasses import replace
 from pathlib import Path
-from typing import TYPE_CHECKING
 
-from ..errors import InfeasibleError, ScenarioError
 from ..solver_methods import METHODS
 from . import progress_printer
-
-if TYPE_CHECKING:
-    from ..pipeline import Run
 
 
 def add_arguments(parser: argparse.ArgumentParser) -> None:
@@ -58,109 +55,39 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
 
 
 def execute(args: argparse.Namespace) -> int:
+    from ..analysis.achievability import run_checking_budget
+    from ..report.console import render_run
+    from ..report.json_output import render_run_json
+    from ..results.folders import refuse_unsafe_target
+    from ..results.writers import write_result
+    from ..scenario.extensions import parse_extension_argument
+
     progress = progress_printer(args.quiet)
 
-    from ..analysis.achievability import diagnose_budget, explain
-    from ..pipeline import run_scenario
-    from ..report.console import render_profile, render_summary
-    from ..results.folders import refuse_unsafe_target
-    from ..scenario.extensions import parse_extension_argument
-    from ..results.writers import write_result
+    def out_of(name: str) -> Path:
+        return args.out or Path("results") / name
 
-    solver = {"method": args.method, "time_limit_s": args.time_limit, "log": args.solver_log}
-    overshoot_price = getattr(args, "allow_overshoot", None)
-    captured = {}
-
-    def hook(inputs):
-        # the output folder is checked before solving: a folder pathcast did not write is refused, never replaced
-        refuse_unsafe_target(args.out or Path("results") / inputs.name)
-        if overshoot_price is not None:
-            if inputs.budget_mt is None:
-                raise ScenarioError(
-                    f"{args.file}: policy.carbon_budget: got none; expected a carbon budget for "
-                    "--allow-overshoot to relax.",
-                    file=str(args.file),
-                    field="policy.carbon_budget",
-                )
-            if overshoot_price < 0:
-                raise ScenarioError(
-                    f"--allow-overshoot {overshoot_price!r}: expected a price >= 0 [currency/tCO2]."
-                )
-            inputs = replace(inputs, budget_overshoot_price=overshoot_price)
-        captured["inputs"] = inputs
+    def check_out(inputs):  # a folder pathcast did not write is refused before solving, never replaced
+        refuse_unsafe_target(out_of(inputs.name))
         return inputs
 
-    try:
-        run = run_scenario(
-            args.file,
-            progress=progress,
-            solver=solver,
-            inputs_hook=hook,
-            extensions=[parse_extension_argument(text) for text in args.extension],
-        )
-    except InfeasibleError:
-        inputs = captured.get("inputs")
-        if inputs is None or inputs.budget_mt is None or overshoot_price is not None:
-            raise
-        diagnosis = diagnose_budget(inputs, budget_infeasible=True, solver=solver, progress=progress)
-        if diagnosis.achievable:  # pragma: no cover - HiGHS said infeasible, so this cannot be
-            raise
-        raise InfeasibleError(explain(diagnosis), diagnosis=diagnosis.as_dict()) from None
-    diagnosis = None
-    if overshoot_price is None:
-        diagnosis = diagnose_budget(captured["inputs"], budget_run=run, solver=solver, progress=progress)
-    else:
-        run = _with_overshoot(run, overshoot_price)
-    out = args.out or Path("results") / run.result.scenario_name
+    checked = run_checking_budget(
+        args.file,
+        solver={"method": args.method, "time_limit_s": args.time_limit, "log": args.solver_log},
+        progress=progress,
+        inputs_hook=check_out,
+        extensions=[parse_extension_argument(text) for text in args.extension],
+        budget_overshoot_price=args.allow_overshoot,
+    )
+    result = checked.run.result
+    out = out_of(result.scenario_name)
     progress(f"writing tables to {out}")
-    write_result(run.result, out, parquet=not args.no_parquet, excel=not args.no_excel)
-    if diagnosis is not None and not diagnosis.achievable:
+    write_result(result, out, parquet=not args.no_parquet, excel=not args.no_excel)
+    if not checked.achievable:
         print(
             f"pathcast: the pathway found sheds demand; its tables are in {out}/ for inspection.",
             file=sys.stderr,
         )
-        raise InfeasibleError(explain(diagnosis), diagnosis=diagnosis.as_dict())
-    if args.json:
-        import json
-
-        print(
-            json.dumps(
-                {
-                    "result_folder": str(out),
-                    "summary": dict(run.result.summary),
-                    "stage_times_s": run.result.manifest.get("stage_times_s"),
-                },
-                indent=2,
-                default=str,
-            )
-        )
-        return 0
-    print(render_summary(run.result))
-    if overshoot_price is not None:
-        s = run.result.summary
-        print(
-            f"  budget overshoot {s['budget_overshoot_mtco2']:,.3f} MtCO2 at {overshoot_price:,.2f} "
-            f"{s.get('currency', '')}/tCO2 (paid in {s['budget_last_year']}: {s['budget_overshoot_cost_million']:,.1f} "
-            f"million {s.get('currency', '')})"
-        )
-    if args.profile:
-        print(render_profile(run.result))
-    print(f"Results written to {out}/")
+        checked.raise_if_not_achievable()
+    print(render_run_json(result, out) if args.json else render_run(result, out, profile=args.profile))
     return 0
-
-
-def _with_overshoot(run: Run, price: float) -> Run:
-    """The run with its budget overshoot [MtCO2] and its cost [million currency, undiscounted] in the summary."""
-    from ..results.run_result import RunResult
-
-    block = run.model.lp.variables["budget_overshoot"]
-    overshoot = max(0.0, float(run.solution.x[block.all()].sum()))
-    r = run.result
-    summary = dict(
-        r.summary,
-        budget_overshoot_mtco2=overshoot,
-        budget_overshoot_price_per_tco2=price,
-        budget_overshoot_cost_million=overshoot * price,
-    )
-    result = RunResult.create(r.scenario_name, dict(r.tables), summary, dict(r.manifest), dict(r.metadata))
-    return replace(run, result=result)
