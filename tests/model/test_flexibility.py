@@ -9,6 +9,7 @@ formulation of a small case with scipy.optimize.linprog, written from the README
 from __future__ import annotations
 
 import copy
+from pathlib import Path
 
 import numpy as np
 import pytest
@@ -27,6 +28,7 @@ from pathcast.model.names import (
     RESERVE_SHORTFALL,
     STORAGE_RESERVE,
 )
+from pathcast.model.solution_values import read_solution
 from pathcast.pipeline import run_scenario
 from pathcast.scenario.inputs import prepare_inputs
 from pathcast.scenario.loader import load_scenario
@@ -134,6 +136,15 @@ def test_min_stable_output_with_reserve_forces_curtailment(tmp_path):
     price = run.result.electricity_price.sort_values("hour")["price_per_mwh"].to_numpy()
     np.testing.assert_allclose(price[:12], 0.0, atol=1e-6)  # the free plant is curtailed at the margin
     np.testing.assert_allclose(price[12:], GAS_MARGINAL, rtol=1e-6)
+    # the gas plant's reserve revenue (45.2 USD/MW-h x 50 MW x 12 h x 365 days) pays exactly for the 50 MW it must run
+    # at a loss in the low hours: its operating margin, energy and reserve together, is zero (LP duality)
+    flexibility = read_solution(run.model, run.solution).flexibility
+    assert flexibility.reserve_holders == ("gas_plant",)
+    revenue = flexibility.reserve_revenue_million[0, 0]
+    assert revenue == pytest.approx(GAS_MARGINAL * 50.0 * 12 * 365 / 1e6, rel=1e-6)
+    energy_revenue = (price * gas).sum() * 365 / 1e6
+    running_cost = GAS_MARGINAL * gas.sum() * 365 / 1e6
+    assert energy_revenue + revenue - running_cost == pytest.approx(0.0, abs=1e-6)
 
 
 def test_without_reserve_the_thermal_plant_goes_offline(tmp_path):
@@ -460,3 +471,24 @@ def test_bad_flexibility_input_is_one_located_sentence(tmp_path, capsys, where, 
     err = capsys.readouterr().err.strip()
     assert err.count("\n") == 0 and "Traceback" not in err
     assert f"{path}: {path_text}: got {value!r}; expected {expected}." in err
+
+
+# ------------------------------------------------------------------------------------------------ the demo variant
+DEMO = Path(__file__).parents[2] / "scenarios" / "demo"
+
+
+def test_demo_variant_is_valid_and_builds_its_flexibility_rows(capsys):
+    """scenarios/demo/budget_flexible.yaml (orders of magnitude cited in the file) passes check and builds online
+    capacity for coal and the combined cycle, ramp rows for coal only, and reserve held by them and the battery."""
+    path = DEMO / "budget_flexible.yaml"
+    assert main(["check", str(path)]) == 0
+    assert "valid scenario 'arvenna_budget_flexible'" in capsys.readouterr().out
+    model = build_linear_program(prepare_inputs(load_scenario(path).scenario))
+    labels = block_labels(model.context)
+    assert labels[ONLINE_CAPACITY].labels[0] == ("coal_steam", "gas_combined_cycle")
+    assert labels[RESERVE].labels[0] == ("coal_steam", "gas_combined_cycle")
+    assert labels[STORAGE_RESERVE].labels[0] == ("battery",)
+    assert (
+        model.lp.row_blocks[RAMP_UP].shape[0] == 1
+    )  # coal only: the combined cycle's ramp cannot bind hourly
+    assert OPERATING_RESERVE in model.lp.row_blocks

@@ -233,6 +233,9 @@ class FlexibilityValues:
         np.ndarray
     )  # [Y, D, H] undiscounted dual of the reserve row [currency/MW per hour]
     shortfall_cost_million: np.ndarray  # [Y] reserve not held at the value of lost load [million/yr]
+    # [R, Y] what each holder earns at the reserve price: sum over hours of price x reserve x hours [million/yr];
+    # with the energy revenue it makes a holder's operating margin (LP duality)
+    reserve_revenue_million: np.ndarray
 
 
 def read_flexibility(ctx: BuildContext, x: np.ndarray, row_dual: np.ndarray) -> FlexibilityValues:
@@ -265,9 +268,12 @@ def read_flexibility(ctx: BuildContext, x: np.ndarray, row_dual: np.ndarray) -> 
         weight = inputs.day_weights[None, :, None] * ctx.discount[:, None, None]
         price = dual * 1000.0 / weight + 0.0  # + 0.0: a price of -0 shows as 0
         cost = inputs.value_of_lost_load * (shortfall * ctx.hour_weight).sum(axis=(1, 2))
+        # [currency/MW per hour] x [GW] x [h] = 1000 currency -> / 1000 for million
+        revenue = (price[None] * reserve_gw * ctx.hour_weight[None]).sum(axis=(2, 3)) / 1000.0
     else:
         requirement = shortfall = price = np.zeros((0, D, H))
         cost = np.zeros(Y)
+        revenue = np.zeros((0, Y))
     return FlexibilityValues(
         active=bool(online) or reserve is not None,
         reserve_required=reserve is not None,
@@ -281,4 +287,5 @@ def read_flexibility(ctx: BuildContext, x: np.ndarray, row_dual: np.ndarray) -> 
         shortfall_gw=read_only(shortfall),
         reserve_price_per_mw_hour=read_only(price),
         shortfall_cost_million=read_only(cost),
+        reserve_revenue_million=read_only(revenue),
     )

@@ -28,6 +28,7 @@ SECTIONS: tuple[tuple[str, type[BaseModel]], ...] = (
     ("capex paths (capex, energy_capex)", schema.CapexPath),
     ("policy", schema.Policy),
     ("policy.carbon_budget", schema.CarbonBudget),
+    ("policy.operating_reserve", schema.OperatingReserve),
     ("solver", schema.SolverSettings),
     ("extensions[]", schema.Extension),
 )
