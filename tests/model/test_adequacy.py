@@ -265,3 +265,18 @@ def test_credit_curve_is_linear_pieces_through_zero():
     pieces = credit_segments({2: 0.5})
     assert pieces == ((0.0, 0.25), (0.5, 0.0))  # firm <= 0.25 x energy, firm <= 0.5 x power
     assert np.isclose(min(a + b * 1.0 for a, b in pieces), 0.25)
+
+
+def test_cost_recovery_counts_operating_reserve_revenue(tmp_path):
+    # a gas plant with a minimum stable output holding an operating reserve: its reserve revenue is part of its
+    # operating margin, and the duality identity still closes
+    def change(m):
+        gas = m["technologies"]["generators"]["gas_combined_cycle"]
+        gas["min_stable_output"] = 0.4
+        gas["provides_reserve"] = True
+        m["policy"]["operating_reserve"] = {"demand_share": 0.05, "variable_renewable_share": 0.05}
+
+    run = _tiny(tmp_path, change)
+    recovery = run.result.cost_recovery
+    assert recovery["reserve_revenue_million"].sum() > 0
+    _check_recovery(run)

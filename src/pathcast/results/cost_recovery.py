@@ -5,7 +5,9 @@ cost over their life.
 energy revenue (hourly electricity prices x output; storage: discharge less charge; electricity-input converters pay
 for what they draw), fuel revenue (converters: output at the fuel's price less fuel input at its price), fuel cost and
 carbon cost of generators (fuel at its price, emissions at the full carbon price: path + budget + caps), variable O&M,
-the clean-share rent (clean generators earn, others pay, the target's shadow price per MWh), capacity revenue (the
+the clean-share rent (clean generators earn, others pay, the target's shadow price per MWh), operating-reserve
+revenue (reserve held at the hourly reserve price; variable renewables pay for the reserve their output calls for),
+capacity revenue (the
 capacity price x firm capacity; for tranche-credited generators every GW earns the marginal tranche's credit),
 fixed O&M and investment annuities of the vintages in service, and the net. ``capacity_value_million`` is the same
 capacity valued at the duals of its installed-capacity rows: at the optimum, operating margin + capacity revenue -
@@ -38,6 +40,7 @@ COST_RECOVERY_COLUMNS = [
     "carbon_cost_million",
     "variable_om_million",
     "clean_share_rent_million",
+    "reserve_revenue_million",
     "operating_margin_million",
     "capacity_revenue_million",
     "fixed_om_million",
@@ -128,6 +131,14 @@ def cost_recovery_tables(values: SolutionValues) -> tuple[pd.DataFrame, pd.DataF
     electric_row = {n: c for c, n in enumerate(fuels.electric_converters)}
     fuel_conv_row = {n: c for c, n in enumerate(fuels.fuel_converters)}
     zeros = np.zeros(Y)
+    flexibility = values.flexibility
+    reserve_revenue = (  # operating reserve held, at the hourly reserve price [million/yr]
+        {n: flexibility.reserve_revenue_million[r] for r, n in enumerate(flexibility.reserve_holders)}
+        if flexibility is not None and flexibility.reserve_required
+        else {}
+    )
+    operating_reserve = getattr(inputs, "operating_reserve", None)
+    reserve_share = operating_reserve.variable_renewable_share if operating_reserve is not None else 0.0
 
     rows = []
     for i, t in enumerate(techs):
@@ -171,7 +182,13 @@ def cost_recovery_tables(values: SolutionValues) -> tuple[pd.DataFrame, pd.DataF
             capacity_revenue = values.firm.tranche_value_per_kw_year[i] * capacity
         else:
             capacity_revenue = capacity_price * values.firm.firm_gw[i]
-        margin = energy + fuel_revenue - fuel_cost - carbon_cost - vom + clean
+        reserve = reserve_revenue.get(t.name, zeros)
+        if reserve_revenue and t.kind == "generator" and t.variable_renewable and reserve_share:
+            # variable output raises the reserve requirement: share x available output x the hourly reserve price
+            price_h = flexibility.reserve_price_per_mw_hour  # [Y, D, H] currency/MW per hour
+            available = t.availability[None] * capacity[:, None, None]  # [Y, D, H] GW
+            reserve = reserve - reserve_share * (price_h * available * w).sum(axis=(1, 2)) / 1000.0
+        margin = energy + fuel_revenue - fuel_cost - carbon_cost - vom + clean + reserve
         net = margin + capacity_revenue - fixed - ann
         for y, year in enumerate(cap.years):
             rows.append(
@@ -186,6 +203,7 @@ def cost_recovery_tables(values: SolutionValues) -> tuple[pd.DataFrame, pd.DataF
                     carbon_cost[y],
                     vom[y],
                     clean[y],
+                    reserve[y],
                     margin[y],
                     capacity_revenue[y],
                     fixed[y],
@@ -219,15 +237,27 @@ def _vintages(values: SolutionValues) -> pd.DataFrame:
         )
         for k, t in enumerate(storage)
     ]
+    held = (
+        dict(zip(worth.technologies, worth.build_held_by_growth, strict=True))
+        if worth.build_held_by_growth is not None
+        else {}
+    )
     for t, part, new, value, annuity, unit in parts:
+        committed = t.committed_gw if part == "power" else t.committed_energy_gwh
+        committed = committed if committed is not None else np.zeros(Y)  # committed projects [GW or GWh]
         for b in range(Y):
             if new[b] <= TOLERANCE_GW:
                 continue
             alive = slice(b, min(b + t.lifetime, Y))
             pv_value = float(value[b])  # discounted value of the build over its years alive (duals)
             pv_annuity = float(annuity[b] * df[alive].sum())
-            limits = part == "power" and (
-                new[b] >= t.max_build_gw[b] - 1e-7 * max(1.0, new[b]) or new[b] <= t.min_build_gw[b] + 1e-7
+            limits = new[b] <= committed[b] + 1e-7 or (
+                part == "power"
+                and (
+                    new[b] >= t.max_build_gw[b] - 1e-7 * max(1.0, new[b])
+                    or new[b] <= t.min_build_gw[b] + 1e-7
+                    or bool(held[t.name][b] if t.name in held else False)
+                )
             )
             rows.append(
                 (
