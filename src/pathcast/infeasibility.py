@@ -23,7 +23,14 @@ import highspy
 import numpy as np
 
 from .model.build import PathwayModel
-from .model.names import BUILD_GROWTH_LIMIT, EARLY_RETIREMENT_LIMIT, ENERGY_NEW, NEW, RESERVE_MARGIN
+from .model.names import (
+    BASE_YEAR_FLEET,
+    BUILD_GROWTH_LIMIT,
+    EARLY_RETIREMENT_LIMIT,
+    ENERGY_NEW,
+    NEW,
+    RESERVE_MARGIN,
+)
 from .scenario.inputs import ModelInputs
 from .solve import CONFLICT_TIME_LIMIT_S, Conflict, highs_lp, new_highs
 
@@ -39,7 +46,8 @@ class ConflictMember:
     """One scenario limit in an infeasible subsystem.
 
     kind: 'reserve margin', 'potential', 'phase-out', 'first build year', 'build-rate limit', 'minimum build',
-    'base-year fleet', 'lead time', 'committed project', 'build growth limit', 'early-retirement limit',
+    'base-year fleet', 'base-year fleet in service', 'lead time', 'committed project', 'build growth limit',
+    'early-retirement limit',
     'storage energy potential', 'supply potential', 'carbon budget', 'yearly emission cap', 'clean-electricity share',
     'longest storage duration', 'shortest storage duration', 'fuel demand', 'electricity demand', 'fixed history',
     'cap on unserved energy'. role: 'target' (something the scenario asks for: a margin, a share, a demand, a minimum)
@@ -68,6 +76,7 @@ _PLURAL = {
     "longest storage duration": "longest storage durations",
     "shortest storage duration": "shortest storage durations",
     "base-year fleet": "base-year fleets",
+    "base-year fleet in service": "base-year fleets in service",
     "lead time": "lead times",
     "committed project": "committed projects",
     "build growth limit": "build growth limits",
@@ -171,8 +180,14 @@ def _shortfall_figure(figure: str, short_gw: float, year: int, inputs: ModelInpu
         return figure
     short = short_gw * 1000.0
     if year == int(inputs.years[0]) and not inputs.new_builds_in_base_year:
-        return f"{figure}; the existing fleet and committed projects are {short:,.0f} MW of firm capacity short"
+        return (
+            f"{figure}; the existing fleet and committed projects are {short:,.0f} MW of firm capacity short"
+        )
     return f"{figure}; {short:,.0f} MW of firm capacity short at best"
+
+
+def _first(values) -> float:
+    return 0.0 if values is None else float(values[0])
 
 
 def _section_path(t) -> str:
@@ -190,6 +205,15 @@ def _row_member(name: str, index: tuple[int, ...], inputs: ModelInputs, ctx, yea
         return ConflictMember(
             "build growth limit", "limit", subject=subject, fields=(f"{_section_path(t)}.max_build_growth",)
         ), years[index[1] + 1]
+    if name == BASE_YEAR_FLEET:
+        t = ctx.capacity_techs[index[0]]
+        in_service = (float(t.existing_gw[0]) + float(_first(t.committed_gw))) * 1000.0
+        return ConflictMember(
+            "base-year fleet in service",
+            "target",
+            subject=f"{t.name} ({in_service:,.0f} MW)",
+            fields=(f"{_section_path(t)}.existing", "metadata.new_builds_in_base_year"),
+        ), years[0]
     if name == EARLY_RETIREMENT_LIMIT:
         t = [t for t in ctx.capacity_techs if np.isfinite(t.max_early_retirement_gw)][index[0]]
         return ConflictMember(
@@ -278,9 +302,12 @@ def _column_member(name, index, side, bound, inputs: ModelInputs, ctx, years):
             else:
                 kind, detail = "fixed history", "builds, capacity and emissions fixed before the start year"
             return ConflictMember(kind, "limit", detail=detail), int(year)
-    if name in (NEW, ENERGY_NEW) and (side == "lower" or _only_committed(
-        ctx.capacity_techs[index[0]] if name == NEW else ctx.storage[index[0]], years[index[1]]
-    )):
+    if name in (NEW, ENERGY_NEW) and (
+        side == "lower"
+        or _only_committed(
+            ctx.capacity_techs[index[0]] if name == NEW else ctx.storage[index[0]], years[index[1]]
+        )
+    ):
         t = ctx.capacity_techs[index[0]] if name == NEW else ctx.storage[index[0]]
         member = _committed_member(t, name, years[index[1]], side, bound, inputs)
         if member is not None or name == ENERGY_NEW:

@@ -48,6 +48,7 @@ def _scenario() -> dict:
             "price_year": 2024,
             "discount_rate": RATE,
             "value_of_lost_load": VOLL,
+            "new_builds_in_base_year": True,  # greenfield: the first year is optimised like the others
         },
         "time": {
             "representative_days": [

@@ -44,6 +44,7 @@ __all__ = [
     "STORAGE_DURATION_MIN",
     "BUILD_GROWTH_LIMIT",
     "EARLY_RETIREMENT_LIMIT",
+    "BASE_YEAR_FLEET",
     "GENERATION_LIMIT",
     "CURTAILMENT_LIMIT",
     "ELECTRICITY_BALANCE",
@@ -149,6 +150,8 @@ STORAGE_DURATION_MIN = "storage_duration_min"
 BUILD_GROWTH_LIMIT = "build_growth_limit"
 # capacity retired early (installed less in service) grows by at most a limit a year [GW/yr]
 EARLY_RETIREMENT_LIMIT = "early_retirement_limit"
+# the base year's power fleet all in service: capacity in service >= existing + committed (within the potential) [GW]
+BASE_YEAR_FLEET = "base_year_fleet"
 # dispatch
 GENERATION_LIMIT = "generation_limit"
 CURTAILMENT_LIMIT = "curtailment_limit"
@@ -194,6 +197,7 @@ ROW_BLOCKS: tuple[str, ...] = (
     STORAGE_DURATION_MIN,
     BUILD_GROWTH_LIMIT,
     EARLY_RETIREMENT_LIMIT,
+    BASE_YEAR_FLEET,
     GENERATION_LIMIT,
     CURTAILMENT_LIMIT,
     ELECTRICITY_BALANCE,
