@@ -120,7 +120,8 @@ def conflict_members(model: PathwayModel, conflict: Conflict) -> tuple[ConflictM
     if margin_rows:
         year, row, position = min(margin_rows)
         member = found[position][0]
-        short = reserve_shortfall(model, row)
+        others = [r for _y, r, _p in sorted(margin_rows) if r != row]
+        short = reserve_shortfall(model, row, others)
         if short is not None:
             figure = _shortfall_figure(member.figure, short, year, inputs)
             found[position] = (replace(member, figure=figure), year)
@@ -158,20 +159,26 @@ def conflict_members(model: PathwayModel, conflict: Conflict) -> tuple[ConflictM
     )
 
 
-def reserve_shortfall(model: PathwayModel, row: int) -> float | None:
+def reserve_shortfall(
+    model: PathwayModel, row: int, others: list[int] | tuple[int, ...] = ()
+) -> float | None:
     """The least firm capacity [GW] by which LP row ``row`` (a reserve-margin row, ``>=``) falls short when every
-    other row and bound of the model holds: the model with zero costs and one slack column s >= 0 on that row,
-    minimising s. None when even that has no optimum (the rest of the model conflicts as well)."""
+    other row and bound of the model holds: the model with zero costs and a slack column s >= 0 on that row,
+    minimising s. The reserve-margin rows ``others`` (later years of the same conflict) get slacks too, at a cost
+    of 1e-6 per GW, so that their own shortfall does not hide the first one. None when even that has no optimum
+    (the rest of the model conflicts as well)."""
     lp_model = highs_lp(model.lp)
     lp_model.col_cost_ = np.zeros(lp_model.num_col_)
     h = new_highs()
     h.setOptionValue("time_limit", float(CONFLICT_TIME_LIMIT_S))
     h.passModel(lp_model)
-    h.addCol(1.0, 0.0, np.inf, 1, np.array([row], dtype=np.int32), np.array([1.0]))
+    first = h.getNumCol()
+    for cost, where in ((1.0, row), *((1e-6, r) for r in others)):
+        h.addCol(cost, 0.0, np.inf, 1, np.array([where], dtype=np.int32), np.array([1.0]))
     h.run()
     if h.getModelStatus() != highspy.HighsModelStatus.kOptimal:
         return None
-    return max(0.0, float(h.getInfo().objective_function_value))
+    return max(0.0, float(h.getSolution().col_value[first]))
 
 
 def _shortfall_figure(figure: str, short_gw: float, year: int, inputs: ModelInputs) -> str:
