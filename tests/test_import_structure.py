@@ -87,7 +87,9 @@ def import_graph(package_dir: Path = PACKAGE_DIR) -> dict[str, set[str]]:
 
 def two_module_loops(graph: dict[str, set[str]]) -> list[tuple[str, str]]:
     """Pairs (a, b), a < b, where a imports b and b imports a."""
-    return sorted((a, b) for a, targets in graph.items() for b in targets if a < b and a in graph.get(b, set()))
+    return sorted(
+        (a, b) for a, targets in graph.items() for b in targets if a < b and a in graph.get(b, set())
+    )
 
 
 def test_graph_sees_the_package_imports() -> None:
@@ -119,4 +121,6 @@ def test_loop_finder_finds_a_loop(tmp_path: Path) -> None:
 
 def test_no_two_modules_import_each_other() -> None:
     loops = two_module_loops(import_graph())
-    assert loops == [], f"modules that import each other (move the helper to the module it belongs in): {loops}"
+    assert loops == [], (
+        f"modules that import each other (move the helper to the module it belongs in): {loops}"
+    )

@@ -62,7 +62,7 @@ class Solution:
     columns: int
     nonzeros: int
     iterations: dict
-    highs: object = field(repr=False, default=None)
+    highs: highspy.Highs | None = field(repr=False, default=None)  # kept for find_conflict
     warm_start: bool = False  # True when HiGHS started from a given basis
     basis: tuple[np.ndarray, np.ndarray] | None = field(repr=False, default=None)  # kept when asked for
 
@@ -155,14 +155,14 @@ def solve_lp(
         highs_opts["threads"] = int(options.threads)
     highs_opts.update(options.options)
     for key, value in highs_opts.items():
-        status = h.setOptionValue(key, highs_value(h, key, value))
-        if status == highspy.HighsStatus.kError:
+        option_status = h.setOptionValue(key, highs_value(h, key, value))
+        if option_status == highspy.HighsStatus.kError:
             raise SolverError(
                 f"solver options: got {key!r} = {value!r}; expected a HiGHS option name and a value HiGHS accepts "
                 "(check them with 'pathcast check')."
             )
     h.passModel(model)
-    if warm:
+    if warm and basis is not None:
         warm = h.setBasis(highs_basis(basis)) == highspy.HighsStatus.kOk
     if int(h.getOptionValue("threads")[1]) != 0:
         # HiGHS keeps one thread scheduler per process, sized by the first solve; a solve that asks for another
@@ -259,7 +259,7 @@ def find_conflict(solution: Solution, time_limit_s: float = CONFLICT_TIME_LIMIT_
                 column_sides=tuple(_bound_side(b) for b in iis.col_bound_),
             )
     if h.getModelStatus() in (MS.kUnbounded, MS.kUnboundedOrInfeasible):
-        ray = h.getPrimalRay()
+        ray = h.getPrimalRay()  # type: ignore[attr-defined]  # in highspy at run time; its 1.16 stubs omit it
         if len(ray) == 3 and ray[1]:
             values = np.asarray(ray[2], dtype=float)
             used = np.flatnonzero(np.abs(values) > 1e-9)

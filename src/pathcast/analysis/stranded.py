@@ -68,7 +68,7 @@ def stranded_capacity(result: RunResult, inputs: ModelInputs) -> pd.DataFrame:
             continue
         new = np.nan_to_num(table["new_mw"].to_numpy(dtype=float)) / 1000.0
         # vintages: (end index = first year index out of service, size [GW], start index, label, build index or None)
-        vintages = []
+        vintages: list[tuple[float, float, int, str, int | None]] = []
         existing = np.asarray(t.existing_gw, dtype=float)
         steps = np.concatenate([existing[:-1] - existing[1:], [existing[-1]]])
         for k in range(Y):

@@ -22,6 +22,7 @@ def scale_value(value: Any, factor: float) -> Any:
         return {year: scale_value(item, factor) for year, item in value.items()}
     if isinstance(value, str):
         match = NUMBER_WITH_UNIT.match(value)
+        assert match is not None, value  # load_ensemble let through only strings that scalable() accepts
         number, unit = float(match.group(1)) * factor, match.group(2)
         return f"{number!r} {unit}".strip()
     return float(value) * factor

@@ -12,7 +12,7 @@ import numpy as np
 from scipy import stats
 from scipy.stats import qmc
 
-from .spec import Choice, EnsembleSpec, Levels, Lognormal, Normal, Triangular, Uniform
+from .spec import Choice, EnsembleSpec, Levels, Lognormal, Normal, Triangular, Uniform, member_count
 
 __all__ = ["Member", "design_members", "frozen_distribution", "inverse_cdf", "unit_hypercube"]
 
@@ -73,8 +73,11 @@ def inverse_cdf(item, u: np.ndarray) -> list:
 def unit_hypercube(members: int, dimensions: int, seed: int) -> np.ndarray:
     """A Latin hypercube sample of ``members`` points in [0, 1)^dimensions (scrambled, so each point lies at random
     inside its stratum)."""
-    keyword = "rng" if "rng" in inspect.signature(qmc.LatinHypercube).parameters else "seed"
-    sampler = qmc.LatinHypercube(d=dimensions, **{keyword: np.random.default_rng(seed)})
+    generator = np.random.default_rng(seed)
+    if "rng" in inspect.signature(qmc.LatinHypercube).parameters:  # SciPy 1.15 and later
+        sampler = qmc.LatinHypercube(d=dimensions, rng=generator)
+    else:  # earlier SciPy calls it seed
+        sampler = qmc.LatinHypercube(d=dimensions, seed=generator)
     return sampler.random(members)
 
 
@@ -96,11 +99,11 @@ def design_members(spec: EnsembleSpec) -> list[Member]:
     f = spec.file
     labels = list(f.inputs)
     if f.design == "latin_hypercube":
-        u = unit_hypercube(int(f.members), len(labels), int(f.seed))
+        count = member_count(spec)
+        assert f.seed is not None  # EnsembleFile's validator requires a seed with latin_hypercube
+        u = unit_hypercube(count, len(labels), int(f.seed))
         columns = {label: inverse_cdf(f.inputs[label], u[:, j]) for j, label in enumerate(labels)}
-        return [
-            Member(i, "sample", {label: columns[label][i] for label in labels}) for i in range(int(f.members))
-        ]
+        return [Member(i, "sample", {label: columns[label][i] for label in labels}) for i in range(count)]
     if f.design == "grid":
         levels = [_levels(f.inputs[label], f.grid_levels) for label in labels]
         return [
@@ -109,7 +112,7 @@ def design_members(spec: EnsembleSpec) -> list[Member]:
         ]
     members = [Member(0, "base", {})]
     for label in labels:
-        low, high = _low_high(f.inputs[label], tuple(f.tornado_quantiles))
+        low, high = _low_high(f.inputs[label], f.tornado_quantiles)
         members.append(Member(len(members), f"{label}:low", {label: low}))
         members.append(Member(len(members), f"{label}:high", {label: high}))
     return members

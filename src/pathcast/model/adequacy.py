@@ -41,11 +41,11 @@ def add_firm_capacity(ctx: BuildContext, rows: RowBlock) -> None:
     fixed = [t for t in ctx.capacity_techs if t.capacity_credit > 0]
     if fixed:
         capacity = ctx.capacity_columns(fixed)
-        credit = np.array([[t.capacity_credit] for t in fixed])
+        fixed_credit = np.array([[t.capacity_credit] for t in fixed])
         rows.add(
             np.broadcast_to(year_rows[None, :], capacity.shape),
             capacity,
-            np.broadcast_to(credit, capacity.shape),
+            np.broadcast_to(fixed_credit, capacity.shape),
         )
 
     by_duration = [(k, t) for k, t in enumerate(ctx.storage) if t.credit_segments]

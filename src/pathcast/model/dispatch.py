@@ -15,6 +15,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from ..scenario.inputs import present
 from .context import BuildContext, read_only
 from .names import (
     CHARGE,
@@ -52,7 +53,7 @@ def add_dispatch(ctx: BuildContext) -> None:
         limit = lp.add_rows(GENERATION_LIMIT, ("technology", "year", "day", "hour"), (G, Y, D, H), "<=", "GW")
         rows = limit.local()
         limit.add(rows, generation.all(), 1.0)
-        availability = np.stack([t.availability for t in gens])  # [G, D, H]
+        availability = np.stack([present(t.availability) for t in gens])  # [G, D, H]
         capacity = ctx.capacity_columns(gens)  # [G, Y]
         limit.add(
             rows,
@@ -85,7 +86,7 @@ def add_pooled_output(
         block.add(
             rows,
             np.broadcast_to(capacity[p][:, None, None], rows.shape),
-            coef * np.broadcast_to(t.availability[None], rows.shape),
+            coef * np.broadcast_to(present(t.availability)[None], rows.shape),
         )
 
 

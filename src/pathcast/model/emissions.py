@@ -8,7 +8,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from ..scenario.inputs import PJ_PER_GWH
+from ..scenario.inputs import PJ_PER_GWH, present
 from .context import BuildContext, read_only
 from .names import CONVERTER_INPUT, CONVERTER_POWER, DELIVERY, EMISSIONS, EMISSIONS_DEFINITION, FUEL_USE
 
@@ -24,8 +24,9 @@ def add_emissions(ctx: BuildContext) -> None:
     r = rows.local()
     rows.add(r, emissions.all(), 1.0)
     for i, t in enumerate(ctx.fuel_generators):
-        if ef.get(t.fuel, 0.0):
-            rows.add(r, ctx.blocks[FUEL_USE].all()[i], -ef[t.fuel])
+        fuel = present(t.fuel)
+        if ef.get(fuel, 0.0):
+            rows.add(r, ctx.blocks[FUEL_USE].all()[i], -ef[fuel])
     fuels = list(inputs.fuels)
     for p, (_d, c) in enumerate(ctx.delivery_pairs):
         if ef.get(fuels[c], 0.0):
@@ -70,8 +71,9 @@ def read_emissions(ctx: BuildContext, x: np.ndarray) -> EmissionsValues:
     conv_power = ctx.column_values(CONVERTER_POWER, x)
     parts: list[tuple[str, str, np.ndarray]] = []
     for i, t in enumerate(ctx.fuel_generators):
-        if ef.get(t.fuel, 0.0):
-            parts.append((t.name, "power", fuel_use[i] * ef[t.fuel]))
+        fuel = present(t.fuel)
+        if ef.get(fuel, 0.0):
+            parts.append((t.name, "power", fuel_use[i] * ef[fuel]))
     for p, (d, c) in enumerate(ctx.delivery_pairs):
         if ef.get(fuels[c], 0.0):
             parts.append(

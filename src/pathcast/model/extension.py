@@ -109,7 +109,8 @@ def read_extension_rows(model: PathwayModel, x: np.ndarray, row_dual: np.ndarray
     matrix, _, _ = model.lp.matrix()
     offsets = model.lp.row_offsets()
     activity_all = matrix @ x
-    out, seen = [], {}
+    out: list[dict] = []
+    seen: dict[str, int] = {}  # rows of each block met so far
     for row in rows:
         r = offsets[row.block] + seen.get(row.block, 0)
         seen[row.block] = seen.get(row.block, 0) + 1

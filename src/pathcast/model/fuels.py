@@ -12,7 +12,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from ..scenario.inputs import PJ_PER_GW_YEAR, PJ_PER_GWH
+from ..scenario.inputs import PJ_PER_GW_YEAR, PJ_PER_GWH, present
 from .context import BuildContext, read_only
 from .names import (
     CONVERTER_INPUT,
@@ -63,7 +63,7 @@ def add_fuels(ctx: BuildContext) -> None:
         rows = lp.add_rows(CONVERTER_POWER_LIMIT, ("technology", "year", "day", "hour"), shape, "<=", "GW")
         r = rows.local()
         rows.add(r, power.all(), 1.0)
-        availability = np.stack([t.availability for t in electric])
+        availability = np.stack([present(t.availability) for t in electric])
         capacity = ctx.capacity_columns(electric)
         rows.add(
             r,
@@ -130,13 +130,13 @@ def add_fuels(ctx: BuildContext) -> None:
         for i, s in enumerate(supplies):
             balance.add(r[fuel_index[s.output]], supply.all()[i], 1.0)
         for i, t in enumerate(burners):
-            balance.add(r[fuel_index[t.fuel]], fuel_use.all()[i], -1.0)
+            balance.add(r[fuel_index[present(t.fuel)]], fuel_use.all()[i], -1.0)
         for i, t in enumerate(electric):
-            out = np.broadcast_to(r[fuel_index[t.output]][:, None, None], (Y, D, H))
+            out = np.broadcast_to(r[fuel_index[present(t.output)]][:, None, None], (Y, D, H))
             balance.add(out, power.all()[i], t.efficiency * hw * PJ_PER_GWH)
         for i, t in enumerate(fuel_conv):
-            balance.add(r[fuel_index[t.output]], conv_input.all()[i], t.efficiency)
-            balance.add(r[fuel_index[t.input]], conv_input.all()[i], -1.0)
+            balance.add(r[fuel_index[present(t.output)]], conv_input.all()[i], t.efficiency)
+            balance.add(r[fuel_index[present(t.input)]], conv_input.all()[i], -1.0)
         for p, (_d, c) in enumerate(pairs):
             balance.add(r[c], delivery.all()[p], -1.0)
 
@@ -226,15 +226,15 @@ def read_fuels(ctx: BuildContext, x: np.ndarray, row_dual: np.ndarray) -> FuelVa
             )
         ),
         burners=tuple(t.name for t in ctx.fuel_generators),
-        burner_fuels=tuple(t.fuel for t in ctx.fuel_generators),
+        burner_fuels=tuple(present(t.fuel) for t in ctx.fuel_generators),
         fuel_use_pj=read_only(ctx.column_values(FUEL_USE, x)),
         electric_converters=tuple(t.name for t in electric),
-        electric_converter_outputs=tuple(t.output for t in electric),
+        electric_converter_outputs=tuple(present(t.output) for t in electric),
         converter_power_gw=read_only(power),
         electric_conversion_output_pj=read_only(electric_output),
         fuel_converters=tuple(t.name for t in fuel_conv),
-        fuel_converter_inputs=tuple(t.input for t in fuel_conv),
-        fuel_converter_outputs=tuple(t.output for t in fuel_conv),
+        fuel_converter_inputs=tuple(present(t.input) for t in fuel_conv),
+        fuel_converter_outputs=tuple(present(t.output) for t in fuel_conv),
         converter_input_pj=read_only(conv_input),
         fuel_conversion_output_pj=read_only(fuel_output),
         delivery_demands=tuple(demands[d].name for d, _c in ctx.delivery_pairs),

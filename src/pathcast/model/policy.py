@@ -7,6 +7,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from ..scenario.inputs import present
 from .adequacy import add_firm_capacity
 from .context import BuildContext, read_only
 from .dispatch import add_pooled_output
@@ -30,7 +31,7 @@ def add_policy(ctx: BuildContext) -> None:
     emissions = ctx.blocks[EMISSIONS].all()
 
     if inputs.budget_mt is not None:
-        first, last = inputs.budget_years
+        first, last = present(inputs.budget_years)  # set together with budget_mt
         inside = (years >= first) & (years <= last)
         rows = lp.add_rows(CARBON_BUDGET, ("budget",), (1,), "<=", "MtCO2", rhs=inputs.budget_mt)
         rows.add(np.zeros(int(inside.sum()), dtype=int), emissions[inside], 1.0)
@@ -119,7 +120,7 @@ def read_policy(ctx: BuildContext, x: np.ndarray, row_dual: np.ndarray) -> Polic
     inputs, lp, Y, df = ctx.inputs, ctx.lp, ctx.Y, ctx.discount
     from_budget = np.zeros(Y)
     if CARBON_BUDGET in lp.row_blocks:
-        first, last = inputs.budget_years
+        first, last = present(inputs.budget_years)
         inside = (inputs.years >= first) & (inputs.years <= last)
         from_budget = np.where(inside, -ctx.row_values(CARBON_BUDGET, row_dual)[0] / df, 0.0)
     from_cap = np.zeros(Y)
@@ -131,13 +132,13 @@ def read_policy(ctx: BuildContext, x: np.ndarray, row_dual: np.ndarray) -> Polic
     )
     clean = np.full(Y, np.nan)
     if CLEAN_ELECTRICITY_SHARE in lp.row_blocks:
-        active = np.flatnonzero(~np.isnan(inputs.clean_share))
+        active = np.flatnonzero(~np.isnan(present(inputs.clean_share)))
         clean[active] = ctx.row_values(CLEAN_ELECTRICITY_SHARE, row_dual) / df[active]
     overshoot = float(ctx.column_values(BUDGET_OVERSHOOT, x)[0]) if BUDGET_OVERSHOOT in ctx.blocks else 0.0
     return PolicyValues(
         years=tuple(int(year) for year in inputs.years),
         budget_mtco2=inputs.budget_mt,
-        budget_years=tuple(inputs.budget_years) if inputs.budget_mt is not None else None,
+        budget_years=inputs.budget_years if inputs.budget_mt is not None else None,
         budget_carbon_price_per_tco2=read_only(from_budget),
         budget_overshoot_mtco2=overshoot,
         cap_years=tuple(int(year) for year in ctx.cap_years),

@@ -25,6 +25,7 @@ import time
 import uuid
 from pathlib import Path
 from types import TracebackType
+from typing import Literal
 
 from ..errors import ScenarioError
 
@@ -169,7 +170,7 @@ class atomic_folder:
 
     def __exit__(
         self, kind: type[BaseException] | None, error: BaseException | None, trace: TracebackType | None
-    ) -> bool:
+    ) -> Literal[False]:  # never swallows the exception
         if kind is not None:
             shutil.rmtree(self.tmp, ignore_errors=True)
             return False

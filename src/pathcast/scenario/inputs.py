@@ -9,6 +9,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, field, replace
+from typing import TypeVar
 
 import numpy as np
 
@@ -26,6 +27,7 @@ __all__ = [
     "OperatingReserveInputs",
     "BaseYearStatistic",
     "prepare_inputs",
+    "present",
     "credit_segments",
     "credit_tranches",
     "DEFAULT_CREDIT_BY_DURATION",
@@ -36,6 +38,17 @@ __all__ = [
 PJ_PER_GWH = 0.0036  # 1 GWh = 3.6 TJ (1 kWh = 3.6 MJ exactly, SI)
 HOURS_PER_YEAR = 8760.0
 PJ_PER_GW_YEAR = PJ_PER_GWH * HOURS_PER_YEAR  # 31.536 PJ from 1 GW running all year
+
+T = TypeVar("T")
+
+
+def present(value: T | None) -> T:
+    """``value``, which prepare_inputs always sets where the caller reads it (a burner's ``fuel``, a converter's
+    ``input`` and ``output``, a generator's ``availability``, a store's energy arrays, the years of a carbon budget
+    that is set): ``X | None`` narrowed to ``X``. None here is a bug in pathcast, not in the scenario."""
+    if value is None:
+        raise TypeError("a model input that prepare_inputs sets in this case is None")
+    return value
 
 
 @dataclass(frozen=True)
@@ -334,6 +347,7 @@ def prepare_inputs(s: Scenario) -> ModelInputs:
     if el.yearly_twh is not None:
         demand_twh = path_values(el.yearly_twh, years)
     else:
+        assert el.base_year_twh is not None  # ElectricityDemand's validator: base_year_twh or yearly_twh
         demand_twh = growth_path(el.base_year_twh, el.growth, years)
     demand_gw = (
         demand_twh[:, None, None] * 1000.0 * shape[None, :, :]
@@ -435,6 +449,7 @@ def prepare_inputs(s: Scenario) -> ModelInputs:
         if fd.yearly_pj is not None:
             pj = path_values(fd.yearly_pj, years)
         else:
+            assert fd.base_year_pj is not None  # FuelDemand's validator: base_year_pj or yearly_pj
             pj = growth_path(fd.base_year_pj, fd.growth, years)
         fuel_demands.append(FuelDemandInputs(name=name, served_by=tuple(fd.served_by), demand_pj=pj))
 

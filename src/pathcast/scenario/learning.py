@@ -30,10 +30,13 @@ def capex_path(path: CapexPath, years: np.ndarray) -> np.ndarray:
     """Capex by year [currency/kW] (or [currency/kWh] for storage energy), never below ``path.floor``."""
     years = np.asarray(years)
     if path.table is not None:
-        values = path_values(path.table, years)
-    elif path.annual_decline is not None:
+        return np.maximum(path_values(path.table, years), path.floor)
+    # CapexPath's validator: exactly one way, and 'base' with annual_decline or learning_rate
+    assert path.base is not None
+    if path.annual_decline is not None:
         values = path.base * (1.0 - path.annual_decline) ** (years - years[0])
     else:
+        assert path.learning_rate is not None
         cumulative = path_values(path.cumulative_deployment, years)
         values = wright_cost(path.base, cumulative, float(cumulative[0]), path.learning_rate)
     return np.maximum(values, path.floor)

@@ -11,6 +11,7 @@ import hashlib
 import io
 import json
 import math
+from collections.abc import Mapping
 from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any
@@ -105,7 +106,7 @@ class _BoundedLoader(yaml.SafeLoader):
         self.path = path
         self.aliases = 0
 
-    def compose_node(self, parent, index):  # type: ignore[no-untyped-def]
+    def compose_node(self, parent: yaml.Node | None, index: int) -> yaml.Node | None:
         if self.check_event(yaml.AliasEvent):
             self.aliases += 1
             if self.aliases > MAX_YAML_ALIASES:
@@ -117,9 +118,10 @@ class _BoundedLoader(yaml.SafeLoader):
                 )
         return super().compose_node(parent, index)
 
-    def compose_document(self):  # type: ignore[no-untyped-def]
+    def compose_document(self) -> yaml.Node | None:
         node = super().compose_document()
-        _check_composed(node, self.path)
+        if node is not None:
+            _check_composed(node, self.path)
         return node
 
 
@@ -491,7 +493,7 @@ _EXPECTED_BY_KIND = {
 }
 
 
-def expected_text(error: dict) -> str:
+def expected_text(error: Mapping[str, Any]) -> str:
     """What a field expected, in words, from one pydantic error (its type and message)."""
     kind = error["type"]
     if kind in _EXPECTED_BY_KIND:

@@ -361,6 +361,8 @@ class _Checker:
                     )
             self.array((*base, "availability"), t.availability, _SHARE)
         if t.kind == "storage":
+            # prepare_inputs gives every storage technology its energy arrays
+            assert t.energy_capex is not None and t.existing_energy_gwh is not None
             self.capex((*base, "energy_capex"), t.energy_capex, _money("currency/kWh"))
             self.value((*base, "energy_fixed_om"), t.energy_fixed_om, _money("currency/kWh/yr"))
             self.existing(

@@ -21,7 +21,7 @@ class UnitError(ValueError):
 
 @functools.lru_cache(maxsize=1)
 def unit_registry() -> pint.UnitRegistry:
-    registry = pint.UnitRegistry(autoconvert_offset_to_baseunit=True)
+    registry: pint.UnitRegistry = pint.UnitRegistry(autoconvert_offset_to_baseunit=True)
     registry.define("currency = [currency] = cur")
     registry.define("tCO2 = 1000 * kilogram")
     registry.define("tonne_per_year = tonne / year")
@@ -61,7 +61,7 @@ def to_unit(value: object, unit: str, currency: str = "USD") -> float:
     text = _CURRENCY_TOKEN.sub(replace, text)
     registry = unit_registry()
     try:
-        quantity = registry.Quantity(text)
+        quantity: pint.Quantity = registry.Quantity(text)
         return float(quantity.to(registry.parse_units(unit)).magnitude)
     except pint.DimensionalityError:
         raise UnitError(f"a quantity convertible to {_show(unit, currency)}") from None

@@ -4,12 +4,12 @@ technologies (reachability on the commodity graph)."""
 
 from __future__ import annotations
 
-from typing import TYPE_CHECKING
+from typing import TYPE_CHECKING, Any, NoReturn
 
 import networkx as nx
 
 from ..errors import did_you_mean, located_error
-from .schema import ELECTRICITY, Scenario
+from .schema import ELECTRICITY, Scenario, Storage
 
 if TYPE_CHECKING:
     from .loader import LoadedScenario
@@ -23,6 +23,8 @@ NAME_MAX = 64
 # A name may not start with a character that spreadsheet programs read as the start of a formula (OWASP, "CSV
 # Injection"), so that no table cell pathcast writes can run as one; the writers escape free text as well.
 _FORMULA_STARTS = ("=", "+", "-", "@")
+
+FieldPath = tuple[str | int | float, ...]  # keys from the top of the scenario file down to one field
 
 
 def name_problem(name: object) -> str | None:
@@ -43,12 +45,12 @@ def check_scenario(loaded: LoadedScenario) -> None:
     """Raise ScenarioError for the first problem found, located to its file and field."""
     s = loaded.scenario
 
-    def fail(path: tuple, value, expected: str):
+    def fail(path: FieldPath, value: Any, expected: str) -> NoReturn:
         raise located_error(loaded.file_of(path), path, value, expected)
 
     meta = s.metadata
     # --- names: they become table cells, figure labels and file names ------------------------------------------
-    named = [
+    named: list[tuple[FieldPath, str]] = [
         (("time", "representative_days", i, "name"), d.name) for i, d in enumerate(s.time.representative_days)
     ]
     named += [(("commodities", n), n) for n in s.commodities]
@@ -115,7 +117,7 @@ def check_scenario(loaded: LoadedScenario) -> None:
         )
     all_commodities = sorted(commodities | {ELECTRICITY})
 
-    def known_commodity(path: tuple, name: str | None, allow_electricity: bool) -> None:
+    def known_commodity(path: FieldPath, name: str | None, allow_electricity: bool) -> None:
         pool = all_commodities if allow_electricity else sorted(commodities)
         if name not in pool:
             fail(path, name, f"one of the commodities {pool}{did_you_mean(str(name), pool)}")
@@ -242,8 +244,10 @@ def check_scenario(loaded: LoadedScenario) -> None:
                         f"a year before phase_out_year {t.phase_out_year}",
                     )
                 if kind != "storage" and project.energy_mwh > 0:
-                    fail(where + ("energy_mwh",), project.energy_mwh, "0 (energy capacity is for storage only)")
-                if kind == "storage" and project.capacity_mw > 0:
+                    fail(
+                        where + ("energy_mwh",), project.energy_mwh, "0 (energy capacity is for storage only)"
+                    )
+                if isinstance(t, Storage) and project.capacity_mw > 0:
                     hours = project.energy_mwh / project.capacity_mw
                     longest = t.max_duration_hours
                     if hours < t.min_duration_hours or (longest is not None and hours > longest):
@@ -269,8 +273,8 @@ def check_scenario(loaded: LoadedScenario) -> None:
 
     # --- demand ----------------------------------------------------------------------------------------------------
     for name, fd in s.demand.fuels.items():
-        for i, c in enumerate(fd.served_by):
-            known_commodity(("demand", "fuels", name, "served_by", i), c, allow_electricity=False)
+        for i, commodity in enumerate(fd.served_by):
+            known_commodity(("demand", "fuels", name, "served_by", i), commodity, allow_electricity=False)
 
     # --- policy ----------------------------------------------------------------------------------------------------
     pol = s.policy
@@ -313,19 +317,22 @@ def check_scenario(loaded: LoadedScenario) -> None:
                 tranches[-1].up_to_share_of_peak,
                 "none in the last tranche, so that the tranches cover all capacity that can be built",
             )
+        previous_share: float | None = None
         for i, tranche in enumerate(tranches[:-1]):
-            if tranche.up_to_share_of_peak is None:
+            tranche_share = tranche.up_to_share_of_peak
+            if tranche_share is None:
                 fail(
                     where + (i, "up_to_share_of_peak"),
                     None,
                     "a share of peak demand in every tranche but the last",
                 )
-            if i and tranche.up_to_share_of_peak <= tranches[i - 1].up_to_share_of_peak:
+            if previous_share is not None and tranche_share <= previous_share:
                 fail(
                     where + (i, "up_to_share_of_peak"),
-                    tranche.up_to_share_of_peak,
-                    f"a share above the previous tranche's {tranches[i - 1].up_to_share_of_peak!r}",
+                    tranche_share,
+                    f"a share above the previous tranche's {previous_share!r}",
                 )
+            previous_share = tranche_share
         for i in range(1, len(tranches)):
             if tranches[i].credit > tranches[i - 1].credit:
                 fail(
@@ -360,16 +367,14 @@ def check_scenario(loaded: LoadedScenario) -> None:
                 )
 
     if pol.reserve_margin is not None:
-        credited = [
-            g.capacity_credit
-            for g in tech.generators.values()
-            if g.capacity_credit_tranches is None and (g.capacity_credit is None or g.capacity_credit > 0)
+        credited = [  # names of the technologies that count toward the reserve margin
+            name
+            for name, g in tech.generators.items()
+            if (g.capacity_credit_tranches is None and (g.capacity_credit is None or g.capacity_credit > 0))
+            or any(t.credit > 0 for t in g.capacity_credit_tranches or ())
         ]
         credited += [
-            g for g in tech.generators.values() if any(t.credit > 0 for t in g.capacity_credit_tranches or ())
-        ]
-        credited += [
-            st for st in tech.storage.values() if st.capacity_credit is None or st.capacity_credit > 0
+            name for name, st in tech.storage.items() if st.capacity_credit is None or st.capacity_credit > 0
         ]
         if not credited:
             fail(
@@ -406,7 +411,7 @@ def check_scenario(loaded: LoadedScenario) -> None:
 
 def commodity_graph(s: Scenario) -> nx.DiGraph:
     """Directed graph: primary supply -> commodity -> ... -> electricity, one edge per technology."""
-    graph = nx.DiGraph()
+    graph: nx.DiGraph[str] = nx.DiGraph()
     graph.add_node(SOURCE)
     for name, sup in s.technologies.supplies.items():
         graph.add_edge(SOURCE, sup.output, technology=name)
