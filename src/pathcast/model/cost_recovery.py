@@ -19,8 +19,10 @@ from dataclasses import dataclass
 import numpy as np
 
 from ..scenario.inputs import present
+from .capacity import growth_limit_binds, retirement_duals
 from .context import BuildContext, read_only
 from .names import (
+    CAPACITY,
     CAPACITY_INSTALLED,
     CAPACITY_NO_RETURN,
     ENERGY_CAPACITY_INSTALLED,
@@ -52,6 +54,8 @@ class CapacityValueValues:
     energy_build_value_per_kwh: np.ndarray  # [S, Y] the same per kWh of storage energy
     annuity_per_kw: np.ndarray  # [T, Y] investment annuity of a kW built in the year [currency/kW/yr]
     energy_annuity_per_kwh: np.ndarray  # [S, Y] the same per kWh of storage energy [currency/kWh/yr]
+    # [T, Y] True where a build-growth limit holds the build of the year (model.capacity.growth_limit_binds)
+    build_held_by_growth: np.ndarray | None = None
 
 
 def _fleet_values(ctx: BuildContext, row_dual: np.ndarray, installed: str, no_return: str, techs) -> tuple:
@@ -78,6 +82,15 @@ def read_capacity_value(ctx: BuildContext, row_dual: np.ndarray) -> CapacityValu
     [million/GW] = [currency/kW])."""
     techs, storage = ctx.capacity_techs, ctx.storage
     power, build = _fleet_values(ctx, row_dual, CAPACITY_INSTALLED, CAPACITY_NO_RETURN, techs)
+    # rows that keep capacity in service (base year, early-retirement limits) value it like the installed rows do
+    rho, Y = retirement_duals(ctx, row_dual), ctx.Y
+    power = power + (rho[:, :Y] - rho[:, 1:]) / ctx.discount[None, :]
+    for i, t in enumerate(techs):
+        build[i] += rho[i, :Y] - rho[i, np.minimum(np.arange(Y) + t.lifetime, Y)]
+    # capacity held at a column bound (a potential, a phase-out) earns that bound's rent: its reduced cost
+    matrix = ctx.lp.matrix()[0]
+    reduced = ctx.lp.cost_vector() - matrix.T @ row_dual
+    power = power - reduced[ctx.blocks[CAPACITY].all()] / ctx.discount[None, :]
     if storage and ENERGY_CAPACITY_INSTALLED in ctx.lp.row_blocks:
         energy, energy_build = _fleet_values(
             ctx, row_dual, ENERGY_CAPACITY_INSTALLED, ENERGY_CAPACITY_NO_RETURN, storage
@@ -96,4 +109,5 @@ def read_capacity_value(ctx: BuildContext, row_dual: np.ndarray) -> CapacityValu
         energy_build_value_per_kwh=read_only(energy_build),
         annuity_per_kw=read_only(annuity),
         energy_annuity_per_kwh=read_only(energy_annuity),
+        build_held_by_growth=read_only(growth_limit_binds(ctx, row_dual)),
     )
