@@ -314,7 +314,8 @@ def _solar(m) -> dict:
             lambda m: m["technologies"]["storage"]["battery"].update(
                 committed=[{"capacity_mw": 100, "energy_mwh": 1000, "in_service_year": 2026}]
             ),
-            r"battery\.committed\.0\.energy_mwh: got 1000\.0; expected energy of 0 to 8 hours of its 100 MW",
+            r"battery\.committed\.0\.energy_mwh: got 1000\.0; expected energy of 0 to 8 hours of the project's "
+            r"capacity_mw \(100 MW;",
         ),
         (
             lambda m: m.update(base_year_statistics={"generation_twh": {"solar_p": 1.0}}),

@@ -99,11 +99,11 @@ class TechnologyInputs:
     process_emission_factor: float = 0.0  # [MtCO2/PJ output] = [tCO2/GJ]
     converter_availability: float = 1.0
     # the starting year and the speed of change (every kind)
-    committed_gw: np.ndarray | None = None  # [Y] committed projects in service from each year [GW/yr]; None: none
+    committed_gw: np.ndarray | None = None  # [Y] committed projects from each year [GW/yr]; None: none
     committed_energy_gwh: np.ndarray | None = None  # [Y] storage: their energy capacity [GWh/yr]
     earliest_new_year: int | None = None  # first year a build that is not committed can be in service
     lead_time_years: int | None = None  # [yr] as given in the scenario
-    build_growth_factor: float | None = None  # [-] new[y] <= seed + factor x new[y-1] (+ committed); None: no limit
+    build_growth_factor: float | None = None  # [-] new[y] <= seed + factor x new[y-1] + committed; None: none
     build_growth_seed_gw: float = 0.0  # [GW/yr]
     max_early_retirement_gw: float = math.inf  # [GW/yr] growth of capacity retired early, inf for none
 
@@ -255,10 +255,13 @@ def _base_year_statistics(s: Scenario) -> tuple[BaseYearStatistic, ...]:
     stats = s.base_year_statistics
     if stats is None:
         return ()
-    out = [BaseYearStatistic("generation", n, "TWh", float(v), stats.source) for n, v in stats.generation_twh.items()]
-    out += [BaseYearStatistic("fuel_use", n, "PJ", float(v), stats.source) for n, v in stats.fuel_use_pj.items()]
+    source = stats.source
+    out = [
+        BaseYearStatistic("generation", n, "TWh", float(v), source) for n, v in stats.generation_twh.items()
+    ]
+    out += [BaseYearStatistic("fuel_use", n, "PJ", float(v), source) for n, v in stats.fuel_use_pj.items()]
     if stats.emissions_mtco2 is not None:
-        out.append(BaseYearStatistic("emissions", "total", "MtCO2", float(stats.emissions_mtco2), stats.source))
+        out.append(BaseYearStatistic("emissions", "total", "MtCO2", float(stats.emissions_mtco2), source))
     return tuple(out)
 
 
@@ -467,9 +470,7 @@ def prepare_inputs(s: Scenario) -> ModelInputs:
             clean_share = np.where(years < min(pol.clean_electricity_share), np.nan, clean_share)
 
     specs = {**s.technologies.generators, **s.technologies.storage, **s.technologies.converters}
-    techs = [
-        _starting_year_and_pace(t, specs[t.name], years, meta.new_builds_in_base_year) for t in techs
-    ]
+    techs = [_starting_year_and_pace(t, specs[t.name], years, meta.new_builds_in_base_year) for t in techs]
 
     reserve = pol.operating_reserve
     operating_reserve = None

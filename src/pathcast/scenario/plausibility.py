@@ -332,9 +332,7 @@ class _Checker:
         if t.committed_gw is not None:
             self.array((*base, "committed"), t.committed_gw, _BUILD, year_axis=0)
         self.value((*base, "max_build_growth", "seed_mw"), t.build_growth_seed_gw, _BUILD)
-        self.value(
-            (*base, "max_early_retirement_mw_per_year"), t.max_early_retirement_gw, _BUILD_LIMIT
-        )
+        self.value((*base, "max_early_retirement_mw_per_year"), t.max_early_retirement_gw, _BUILD_LIMIT)
         credit = Bound(0.0, 1.0, "")
         self.value((*base, "capacity_credit"), t.capacity_credit, credit)
         efficiency_field = "efficiency"

@@ -25,12 +25,15 @@ SECTIONS: tuple[tuple[str, type[BaseModel]], ...] = (
     ("technologies.converters.<name>", schema.Converter),
     ("technologies.supplies.<name>", schema.Supply),
     ("technologies.*.existing[]", schema.ExistingCapacity),
+    ("technologies.*.committed[]", schema.CommittedProject),
+    ("technologies.*.max_build_growth", schema.BuildGrowth),
     ("capex paths (capex, energy_capex)", schema.CapexPath),
     ("policy", schema.Policy),
     ("policy.carbon_budget", schema.CarbonBudget),
     ("policy.operating_reserve", schema.OperatingReserve),
     ("solver", schema.SolverSettings),
     ("extensions[]", schema.Extension),
+    ("base_year_statistics", schema.BaseYearStatistics),
 )
 
 

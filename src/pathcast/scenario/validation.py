@@ -255,8 +255,9 @@ def check_scenario(loaded: LoadedScenario) -> None:
                             where + ("energy_mwh",),
                             project.energy_mwh,
                             f"energy of {t.min_duration_hours:g} to "
-                            f"{'any number of' if longest is None else format(longest, 'g')} hours of its "
-                            f"{project.capacity_mw:g} MW (min_duration_hours, max_duration_hours)",
+                            f"{'any number of' if longest is None else format(longest, 'g')} hours of the "
+                            f"project's capacity_mw ({project.capacity_mw:g} MW; min_duration_hours, "
+                            "max_duration_hours)",
                         )
     statistics = s.base_year_statistics
     if statistics is not None:
