@@ -280,7 +280,7 @@ def run_scenario(
     meta = loaded.scenario.metadata
     metadata = meta.model_dump()
     metadata["files"] = [str(p) for p in loaded.files]
-    return solve_inputs(
+    run = solve_inputs(
         inputs,
         solver=solver,
         progress=progress,
@@ -289,6 +289,18 @@ def run_scenario(
         source=str(loaded.path),
         metadata=metadata,
     )
+    return _with_assumptions(run, loaded)
+
+
+def _with_assumptions(run: Run, loaded: LoadedScenario) -> Run:
+    """The run whose result carries the assumptions table of its loaded scenario (results.assumptions), so that
+    reports of the result, or of its folder, need not read the scenario file again."""
+    from .results.assumptions import ASSUMPTIONS_TABLE, assumptions_table
+
+    r = run.result
+    tables = {**r.tables, ASSUMPTIONS_TABLE: assumptions_table(loaded)}
+    result = RunResult.create(r.scenario_name, tables, dict(r.summary), dict(r.manifest), dict(r.metadata))
+    return replace(run, result=result)
 
 
 def with_changes(inputs: ModelInputs, **changes) -> ModelInputs:

@@ -62,7 +62,8 @@ def test_manifest_lists_every_file_of_the_set(folder):
     assert manifest["run_id"] == summary["run_id"]
     listed = set(manifest["files"])
     on_disk = {f"{d}/{p.name}" for d in ("tables", "figures") for p in (folder / d).iterdir()} | {
-        "summary.json"
+        "summary.json",
+        "robustness.json",
     }
     assert listed == on_disk
     assert {"tables/members.csv", "tables/tornado.parquet", "figures/tornado.png"} <= listed
@@ -90,7 +91,8 @@ def test_a_write_cut_between_the_swaps_is_refused_by_readers(folder, monkeypatch
     assert not (folder / MANIFEST).exists()
     assert (folder / "tables").is_dir() and (folder / "summary.json").is_file()
     with pytest.raises(
-        ScenarioError, match=rf"{MANIFEST}: got no readable manifest beside tables, figures, summary\.json; "
+        ScenarioError,
+        match=rf"{MANIFEST}: got no readable manifest beside tables, figures, summary\.json, robustness\.json; ",
     ):
         ensemble_robustness_section(folder)
     out = folder.parent / "memo"
@@ -142,7 +144,7 @@ def test_outputs_older_than_the_members_are_refused(folder):
 def test_a_copy_without_figures_and_a_folder_without_outputs_are_read(folder):
     shutil.rmtree(folder / "figures")
     assert verify_outputs(folder) is not None
-    for name in ("tables", "summary.json", MANIFEST):
+    for name in ("tables", "summary.json", "robustness.json", MANIFEST):
         path = folder / name
         shutil.rmtree(path) if path.is_dir() else path.unlink()
     assert verify_outputs(folder) is None  # members only, as run_ensemble(..., outputs=False) leaves it

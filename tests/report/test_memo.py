@@ -143,6 +143,7 @@ def test_changed_scenario_file_limits_assumptions(tmp_path):
 
     scenario = write_scenario(tmp_path, tiny_mapping(), "tiny_copy.yaml")
     folder = write_result(run_scenario(scenario).result, tmp_path / "result", parquet=False, excel=False)
+    (folder / "assumptions.csv").unlink()  # a result folder of an earlier pathcast, which did not store them
     changed = tiny_mapping()
     changed["metadata"]["discount_rate"] = 0.05
     write_scenario(tmp_path, changed, "tiny_copy.yaml")

@@ -1,6 +1,8 @@
 """`pathcast memo` with an ensemble folder among its inputs: the "Robustness across an ensemble" section, the sentence in
 the finding, the ensemble's figures copied and embedded, an ensemble-only memo, and the error for a folder that is
-neither a result folder nor an ensemble folder.
+neither a result folder nor an ensemble folder. The section is data: robustness.json, listed in outputs.json, read by
+the memo as paragraphs, tables and figure references (a folder of an earlier pathcast without it gets the same section
+computed from its member records; a changed, unlisted or unreadable one is refused).
 
 The checked values are the ensemble's own summary.json (written by `pathcast ensemble` from the same member records);
 no outside source. Formatting tolerance: the robustness table shows three significant digits below 1,000 and whole
@@ -12,6 +14,7 @@ digit shown).
 from __future__ import annotations
 
 import base64
+import hashlib
 import json
 import math
 import re
@@ -218,3 +221,187 @@ def test_missing_input_names_every_kind(tmp_path):
         r"result folder written by 'pathcast run' or an ensemble folder",
     ):
         split_inputs([tmp_path / "missing"])
+
+
+# --- the robustness section is data: robustness.json, listed in outputs.json, read by the memo as blocks -----------
+
+
+def listed_facts(path) -> dict:
+    """A file's size and SHA-256 as outputs.json lists them."""
+    body = path.read_bytes()
+    return {"bytes": len(body), "sha256": hashlib.sha256(body).hexdigest()}
+
+
+def rewrite_listed(folder, relative: str, data) -> None:
+    """Write ``data`` as ``folder/relative`` and record its size and SHA-256 in outputs.json, as a run would."""
+    path = folder / relative
+    path.write_text(json.dumps(data, indent=1), encoding="utf-8")
+    manifest = json.loads((folder / "outputs.json").read_text())
+    manifest["files"][relative] = listed_facts(path)
+    (folder / "outputs.json").write_text(json.dumps(manifest, indent=1), encoding="utf-8")
+
+
+@pytest.fixture
+def ensemble_copy(ensemble_dir, tmp_path):
+    copy = tmp_path / "tiny_lhs"
+    shutil.copytree(ensemble_dir, copy)
+    return copy
+
+
+def test_robustness_json_is_listed_and_holds_blocks(ensemble_dir, summary):
+    from pathcast.ensemble.robustness import FORMAT
+
+    path = ensemble_dir / "robustness.json"
+    assert json.loads((ensemble_dir / "outputs.json").read_text())["files"][
+        "robustness.json"
+    ] == listed_facts(path)
+    data = json.loads(path.read_text())
+    assert data["format"] == FORMAT and data["ensemble"] == summary["name"]
+    kinds = [block["kind"] for block in data["blocks"]]
+    assert kinds.count("table") == 1 and kinds.count("figure") == 1 and kinds[0] == "paragraph"
+    table = next(block for block in data["blocks"] if block["kind"] == "table")
+    assert [c["name"] for c in table["columns"]] == ["quantity", "unit", "5 %", "median", "95 %"]
+    assert [c["numeric"] for c in table["columns"]] == [False, False, True, True, True]
+    rows = {row[0]: row for row in table["rows"]}
+    for label, (key, scale) in ROWS.items():
+        values = summary["headline_percentiles"][key]
+        for shown, percentile in zip(rows[label][2:], ("p5", "p50", "p95"), strict=True):
+            assert three_digits_equal(shown, values[percentile] * scale), (label, percentile, shown)
+    figure = next(block for block in data["blocks"] if block["kind"] == "figure")
+    assert (ensemble_dir / figure["file"]).is_file() and figure["file"] == "figures/emissions_fan.png"
+    first = data["blocks"][0]["spans"]
+    assert {"text": summary["name"], "style": "strong"} in first
+    assert {"text": "tiny.yaml", "style": "code"} in first
+
+
+def test_memo_reads_the_section_from_robustness_json(ensemble_copy, tiny_folder, tmp_path, monkeypatch):
+    from pathcast.ensemble import outputs
+
+    data = json.loads((ensemble_copy / "robustness.json").read_text())
+    marker = "Marker paragraph written into robustness.json by this test."
+    data["blocks"][-1] = {"kind": "paragraph", "spans": [{"text": marker, "style": "plain"}]}
+    table = next(block for block in data["blocks"] if block["kind"] == "table")
+    table["rows"][0][2] = "12,345"
+    rewrite_listed(ensemble_copy, "robustness.json", data)
+
+    def refuse(_summary):
+        raise AssertionError("the memo computed the robustness section instead of reading robustness.json")
+
+    monkeypatch.setattr(outputs, "robustness_section", refuse)
+    out = tmp_path / "memo"
+    assert main(["memo", str(tiny_folder), str(ensemble_copy), "--out", str(out), "--quiet"]) == 0
+    markdown = (out / "memo.md").read_text()
+    section = section_of(markdown, SECTION)
+    assert marker in section and "Members differ only in the inputs listed" not in section
+    assert table_rows(section)["total discounted system cost"][1] == "12,345"
+    page = (out / "memo.html").read_text()
+    assert marker in page and '<td class="number">12,345</td>' in page
+    assert f"<strong>{data['ensemble']}</strong>" in page and "<code>tiny.yaml</code>" in page
+
+
+def test_an_ensemble_folder_without_robustness_json_gets_the_same_section(
+    ensemble_copy, tiny_folder, memo_dir, tmp_path
+):
+    """A folder written by an earlier pathcast: no robustness.json, and outputs.json does not list one."""
+    (ensemble_copy / "robustness.json").unlink()
+    manifest = json.loads((ensemble_copy / "outputs.json").read_text())
+    del manifest["files"]["robustness.json"]
+    (ensemble_copy / "outputs.json").write_text(json.dumps(manifest, indent=1), encoding="utf-8")
+    out = tmp_path / "memo"
+    assert main(["memo", str(tiny_folder), str(ensemble_copy), "--out", str(out), "--quiet"]) == 0
+    computed = section_of((out / "memo.md").read_text(), SECTION)
+    assert computed == section_of((memo_dir / "memo.md").read_text(), SECTION)
+
+
+def test_a_changed_robustness_json_is_refused(ensemble_copy, tmp_path, capsys):
+    with open(ensemble_copy / "robustness.json", "a", encoding="utf-8") as handle:
+        handle.write("\n")
+    out = tmp_path / "memo"
+    assert main(["memo", str(ensemble_copy), "--out", str(out), "--quiet"]) == 2
+    err = capsys.readouterr().err.strip()
+    assert len(err.splitlines()) == 1
+    assert re.search(r"robustness\.json: got \d+ bytes with SHA-256 [0-9a-f]{12}\.\.\.; expected the", err)
+    assert not out.exists()
+
+
+def test_an_unlisted_robustness_json_is_refused(ensemble_copy):
+    from pathcast.ensemble.outputs import read_robustness
+
+    manifest = json.loads((ensemble_copy / "outputs.json").read_text())
+    del manifest["files"]["robustness.json"]
+    (ensemble_copy / "outputs.json").write_text(json.dumps(manifest, indent=1), encoding="utf-8")
+    with pytest.raises(
+        ScenarioError, match=r"robustness\.json: got a file which outputs\.json does not list; "
+    ):
+        read_robustness(ensemble_copy)
+
+
+def test_robustness_json_of_another_format_is_refused(ensemble_copy, tmp_path, capsys):
+    from pathcast.ensemble.outputs import read_robustness
+
+    data = json.loads((ensemble_copy / "robustness.json").read_text())
+    rewrite_listed(ensemble_copy, "robustness.json", {**data, "format": "robustness 0"})
+    message = (
+        r"robustness\.json: format: got 'robustness 0'; expected 'pathcast robustness section 1', the robustness "
+        r"section this pathcast writes: run 'pathcast ensemble' on the ensemble file again"
+    )
+    with pytest.raises(ScenarioError, match=message):
+        read_robustness(ensemble_copy)
+    assert main(["memo", str(ensemble_copy), "--out", str(tmp_path / "memo"), "--quiet"]) == 2
+    err = capsys.readouterr().err
+    assert re.search(message, err) and len(err.strip().splitlines()) == 1
+
+
+@pytest.mark.parametrize(
+    ("block", "expected"),
+    [
+        ({"kind": "chart"}, r"block kind 'chart' is none of paragraph, table, figure"),
+        (
+            {"kind": "paragraph", "spans": [{"text": "x", "style": "italic"}]},
+            r"span style 'italic' is none of",
+        ),
+        (
+            {"kind": "table", "columns": [{"name": "a", "numeric": False}], "rows": [["1", "2"]]},
+            r"a row has not the 1 cells of the table's columns",
+        ),
+        ({"kind": "figure"}, r"KeyError: 'name'"),
+    ],
+)
+def test_a_block_that_cannot_be_read_is_refused(ensemble_copy, block, expected):
+    from pathcast.ensemble.outputs import read_robustness
+
+    data = json.loads((ensemble_copy / "robustness.json").read_text())
+    rewrite_listed(ensemble_copy, "robustness.json", {**data, "blocks": [*data["blocks"], block]})
+    with pytest.raises(
+        ScenarioError, match=rf"robustness\.json: blocks: got a block that cannot be read \(.*{expected}"
+    ):
+        read_robustness(ensemble_copy)
+
+
+def test_robustness_json_that_is_no_json_is_refused(ensemble_copy):
+    from pathcast.ensemble.outputs import read_robustness
+
+    (ensemble_copy / "robustness.json").write_text("{not json", encoding="utf-8")
+    manifest = json.loads((ensemble_copy / "outputs.json").read_text())
+    manifest["files"]["robustness.json"] = listed_facts(ensemble_copy / "robustness.json")
+    (ensemble_copy / "outputs.json").write_text(json.dumps(manifest), encoding="utf-8")
+    with pytest.raises(ScenarioError, match=r"robustness\.json: got a file that cannot be read as JSON \("):
+        read_robustness(ensemble_copy)
+
+
+def test_markdown_rendering_of_the_data(ensemble_dir):
+    """The Markdown renderer is kept for readers that want text: the same section, figure links into figures/."""
+    from pathcast.ensemble import ensemble_robustness_section
+    from pathcast.ensemble.outputs import read_robustness
+    from pathcast.ensemble.robustness import RobustnessSection, render_markdown
+
+    section = read_robustness(ensemble_dir)
+    assert RobustnessSection.from_dict(section.as_dict(), "x") == section
+    text = ensemble_robustness_section(ensemble_dir)
+    assert text == render_markdown(section, figure_folder=ensemble_dir / "figures")
+    assert (
+        text.startswith(SECTION)
+        and f"]({(ensemble_dir / 'figures' / 'emissions_fan.png').as_posix()})" in text
+    )
+    assert "|---|---|---:|---:|---:|" in text
+    assert "](" not in render_markdown(section)  # no figure folder, no figure lines

@@ -15,8 +15,9 @@ scheduler           the --scheduler address: malformed ones refused, a scheduler
 runner              run_ensemble(): plan, skip what is stored, connect, serial or dask, progress, outputs
 summary             tidy tables, percentiles, probability within budget, tornado, rank correlations
 figures             fan charts, distributions, budget probability, tornado
-outputs             DIR/tables (CSV, Parquet), DIR/figures (PNG), DIR/summary.json as one set, DIR/outputs.json
-robustness          ensemble_robustness_section(ensemble_dir) -> Markdown for a memo
+outputs             DIR/tables (CSV, Parquet), DIR/figures (PNG), DIR/summary.json, DIR/robustness.json as one set,
+                    DIR/outputs.json; read_robustness() and ensemble_robustness_section(ensemble_dir) -> Markdown
+robustness          the memo's robustness section as data (paragraphs, tables, figure references) and its Markdown
 ==================  ==================================================================================================
 
 The public names below are imported on first use (module ``__getattr__``), so that ``pathcast check`` can look at an
@@ -29,7 +30,7 @@ import importlib
 from typing import TYPE_CHECKING, Any
 
 if TYPE_CHECKING:  # the same names, for type checkers and editors
-    from .robustness import ensemble_robustness_section
+    from .outputs import ensemble_robustness_section
     from .runner import EnsembleRun, run_ensemble
     from .spec import EnsembleSpec, load_ensemble
     from .summary import EnsembleSummary, summarise_ensemble
@@ -52,7 +53,7 @@ _LAZY_NAMES: dict[str, str] = {
     "EnsembleRun": ".runner",
     "summarise_ensemble": ".summary",
     "EnsembleSummary": ".summary",
-    "ensemble_robustness_section": ".robustness",
+    "ensemble_robustness_section": ".outputs",
 }
 
 

@@ -1,4 +1,5 @@
-"""Write an ensemble's summary set -- DIR/tables/ (CSV and Parquet), DIR/figures/ (PNG), DIR/summary.json -- and, last,
+"""Write an ensemble's summary set -- DIR/tables/ (CSV and Parquet), DIR/figures/ (PNG), DIR/summary.json and
+DIR/robustness.json (the memo's robustness section as data, :mod:`pathcast.ensemble.robustness`) -- and, last,
 DIR/outputs.json, the manifest saying which files belong together; check that manifest when reading.
 
 Chosen design: a manifest written last (the folder layout readers know stays as it is). One write goes:
@@ -6,23 +7,24 @@ Chosen design: a manifest written last (the folder layout readers know stays as 
 1. what interrupted writes left in DIR is removed (staging folders ``.outputs.tmp-<pid>-<random>`` of processes that
    no longer run; the ``.tables.*`` and ``.figures.*`` temporary folders of earlier pathcast versions);
 2. the whole set is written into one staging folder, DIR/.outputs.tmp-<pid>-<random>/ (tables/, figures/,
-   summary.json), and its manifest is computed there: a run id, the state of the members it summarises (how many
-   solved, failed, pending, and a SHA-256 over every member's hash and status) and every file with its size in bytes
-   and SHA-256;
+   summary.json, robustness.json), and its manifest is computed there: a run id, the state of the members it
+   summarises (how many solved, failed, pending, and a SHA-256 over every member's hash and status) and every file
+   with its size in bytes and SHA-256;
 3. DIR/outputs.json is removed, so from here until step 5 the folder says its set is incomplete;
-4. tables/, figures/ and summary.json are moved from the staging folder into place (renames within DIR; the
-   previous ones go into the staging folder, which is then deleted). A run without figures (``--no-figures``) removes
-   the figures/ of an earlier run, which would no longer belong to the tables;
+4. tables/, figures/, summary.json and robustness.json are moved from the staging folder into place (renames within
+   DIR; the previous ones go into the staging folder, which is then deleted). A run without figures
+   (``--no-figures``) removes the figures/ of an earlier run, which would no longer belong to the tables;
 5. DIR/outputs.json is written (temporary file, then ``os.replace``).
 
 A kill before step 3 leaves the previous set with its manifest; during steps 3-4 no manifest (readers refuse and say
 to run the ensemble again, which solves nothing already stored and rewrites the set); after step 5 the new set.
-Readers -- :func:`verify_outputs`, called by :func:`pathcast.ensemble.ensemble_robustness_section` and so by
-``pathcast memo`` on an ensemble folder -- refuse, in one sentence, a folder whose tables, figures or summary.json are
-there without outputs.json, whose listed files are missing or differ in size or SHA-256, which holds files the
-manifest does not list, or whose members changed since the set was written. A whole tables/ or figures/ folder left
-out (a copy without figures) mixes nothing and is accepted; so is a folder with none of the three (written with
-``outputs=False``), which reads as members only.
+Readers -- :func:`verify_outputs`, called by :func:`read_robustness` (and so by ``pathcast memo`` on an ensemble
+folder) and :func:`ensemble_robustness_section` -- refuse, in one sentence, a folder whose tables, figures,
+summary.json or robustness.json are there without outputs.json, whose listed files are missing or differ in size or
+SHA-256, which holds files the manifest does not list, or whose members changed since the set was written. A whole tables/ or
+figures/ folder left out (a copy without figures) mixes nothing and is accepted; so is a folder with none of the four
+(written with ``outputs=False``), which reads as members only. A set written by an earlier pathcast has no
+robustness.json (its manifest does not list one); readers compute the section from the member records then.
 
 tables/ and figures/ are replaced only when every file in them is one this module writes; anything else there is
 refused before a member is solved (:func:`check_output_targets`). DIR itself must be new, empty, or an ensemble folder
@@ -46,12 +48,21 @@ from pathlib import Path
 import pandas as pd
 
 from ..errors import ScenarioError
+from .robustness import (
+    ROBUSTNESS_FILE,
+    RobustnessSection,
+    read_section_file,
+    render_markdown,
+    robustness_section,
+)
 from .store import is_temporary, remove_leftovers, temporary_prefix, write_json_atomic
-from .summary import EnsembleSummary
+from .summary import EnsembleSummary, summarise_ensemble
 
 __all__ = [
     "write_ensemble_outputs",
     "verify_outputs",
+    "read_robustness",
+    "ensemble_robustness_section",
     "read_outputs_manifest",
     "check_output_targets",
     "check_ensemble_folder",
@@ -74,7 +85,7 @@ TABLE_FILES = (
 )
 FIGURE_FILES = ("emissions_fan", "capacity_fan", "distributions", "budget_probability", "tornado")
 MANIFEST = "outputs.json"
-SET_ENTRIES = ("tables", "figures", "summary.json")
+SET_ENTRIES = ("tables", "figures", "summary.json", ROBUSTNESS_FILE)
 # what an ensemble folder holds; a folder holding only these (a copied basis/, say) is taken as one
 ENSEMBLE_ENTRIES = ("ensemble.json", "members", "basis", *SET_ENTRIES, MANIFEST)
 _LEGACY_PREFIXES = (".tables.", ".figures.")  # atomic_folder's temporary and .old folders of earlier versions
@@ -141,14 +152,14 @@ def _ours(entry: Path) -> bool:
 
 
 def check_output_targets(folder: Path | str) -> None:
-    """Refuse (ScenarioError) a DIR whose tables/, figures/ or summary.json is something this module did not write,
-    before anything is solved or written."""
+    """Refuse (ScenarioError) a DIR whose tables/, figures/, summary.json or robustness.json is something this module
+    did not write, before anything is solved or written."""
     folder = Path(folder)
     for name in SET_ENTRIES:
         entry = folder / name
         if not (entry.exists() or entry.is_symlink()):
             continue
-        wanted_dir = name != "summary.json"
+        wanted_dir = name in ("tables", "figures")
         if entry.is_symlink() or entry.is_dir() != wanted_dir or (wanted_dir and not _ours(entry)):
             what = "a folder" if wanted_dir else "a file"
             raise ScenarioError(
@@ -265,6 +276,7 @@ def _write_set(summary: EnsembleSummary, stage: Path, figures: bool, run_id: str
         },
     }
     write_json_atomic(stage / "summary.json", data)
+    write_json_atomic(stage / ROBUSTNESS_FILE, robustness_section(summary).as_dict())
 
 
 def _listed(stage: Path) -> dict[str, dict]:
@@ -282,7 +294,8 @@ def _listed(stage: Path) -> dict[str, dict]:
 def write_ensemble_outputs(
     summary: EnsembleSummary, folder: Path | str | None = None, *, figures: bool = True
 ) -> list[Path]:
-    """Write DIR/tables, DIR/figures (unless ``figures`` is False), DIR/summary.json and DIR/outputs.json as one set
+    """Write DIR/tables, DIR/figures (unless ``figures`` is False), DIR/summary.json, DIR/robustness.json and
+    DIR/outputs.json as one set
     (see the module's description); return the files written. DIR/members/ is never touched here."""
     folder = Path(folder or summary.folder)
     folder.mkdir(parents=True, exist_ok=True)
@@ -332,14 +345,15 @@ def _again(summary: EnsembleSummary | None) -> str:
     file = (summary.design.get("file") if summary is not None else None) or "ENSEMBLE_FILE"
     return (
         f"run 'pathcast ensemble {file} --out {summary.folder if summary is not None else 'DIR'}' again "
-        "(it solves nothing already stored and rewrites the tables, figures and summary.json together)"
+        "(it solves nothing already stored and rewrites the tables, figures, summary.json and robustness.json "
+        "together)"
     )
 
 
 def verify_outputs(folder: Path | str, summary: EnsembleSummary | None = None) -> dict | None:
-    """Check that DIR's tables, figures and summary.json are the one set its outputs.json lists (sizes and
-    SHA-256, nothing unlisted) and, given the folder's ``summary``, that they summarise the members stored now.
-    Return the manifest, or None when the folder holds no outputs at all; ScenarioError otherwise."""
+    """Check that DIR's tables, figures, summary.json and robustness.json are the one set its outputs.json lists
+    (sizes and SHA-256, nothing unlisted) and, given the folder's ``summary``, that they summarise the members stored
+    now. Return the manifest, or None when the folder holds no outputs at all; ScenarioError otherwise."""
     folder = Path(folder)
     present = [name for name in SET_ENTRIES if (folder / name).exists()]
     manifest = read_outputs_manifest(folder)
@@ -372,6 +386,13 @@ def verify_outputs(folder: Path | str, summary: EnsembleSummary | None = None) -
                 f"(outputs.json): {_again(summary)}.",
                 file=str(path),
             )
+    for name in SET_ENTRIES:
+        if (folder / name).is_file() and name not in listed:
+            raise ScenarioError(
+                f"{folder / name}: got a file which outputs.json does not list; expected only the files of run {run}: "
+                f"{_again(summary)}.",
+                file=str(folder / name),
+            )
     for name in ("tables", "figures"):
         if (folder / name).is_dir():
             extra = sorted(
@@ -394,3 +415,31 @@ def verify_outputs(folder: Path | str, summary: EnsembleSummary | None = None) -
                 file=str(folder / MANIFEST),
             )
     return manifest
+
+
+def read_robustness(ensemble_dir: str | Path, summary: EnsembleSummary | None = None) -> RobustnessSection:
+    """The robustness section of an ensemble folder (``summary``: its :func:`summarise_ensemble`, made here when not
+    given). ScenarioError when the folder's tables, figures, summary.json and robustness.json are not the one set its
+    outputs.json lists for the members stored now (an interrupted write, or members solved since), or when
+    robustness.json is not of this pathcast's format. A folder without robustness.json (members only, or outputs of
+    an earlier pathcast) gets the section computed from its member records."""
+    folder = Path(ensemble_dir)
+    summary = summary if summary is not None else summarise_ensemble(folder)
+    verify_outputs(folder, summary)
+    path = folder / ROBUSTNESS_FILE
+    return read_section_file(path) if path.is_file() else robustness_section(summary)
+
+
+def ensemble_robustness_section(
+    ensemble_dir: str | Path, *, heading_level: int = 2, figure_folder: str | Path | None = None
+) -> str:
+    """Markdown of an ensemble folder's robustness section (:func:`read_robustness`, rendered by
+    :func:`pathcast.ensemble.robustness.render_markdown`): members solved, percentiles of the headline figures, the
+    probability of staying within the carbon budget, the most influential inputs and the fan chart. Figure links point
+    into ``figure_folder`` (default: the ensemble's own figures/ folder, as given). ScenarioError as
+    :func:`read_robustness`."""
+    return render_markdown(
+        read_robustness(ensemble_dir),
+        heading_level=heading_level,
+        figure_folder=Path(figure_folder) if figure_folder else Path(ensemble_dir) / "figures",
+    )

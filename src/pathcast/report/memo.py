@@ -6,11 +6,16 @@ blocks (headings, paragraphs, tables, figures); :func:`render_markdown` and :fun
 :func:`write_memo` writes ``memo.md``, a self-contained ``memo.html`` (figures embedded as base64 PNG: no external
 files, no network) and ``figures/*.png|svg`` into a folder, atomically.
 
+Each run's assumptions are the table its result carries (``result.tables["assumptions"]``, made from the loaded
+scenario at run time and written as assumptions.csv, :mod:`pathcast.results.assumptions`); :class:`MemoInput` holds
+it with a note when it is incomplete (a result folder of an earlier pathcast). The memo opens no scenario file.
+
 An ensemble (:class:`MemoEnsemble`, read from a folder of ``pathcast ensemble``) adds a sentence to the findings (the
 probability of staying within the carbon budget and the 5-95 % range of the total discounted system cost), its
-"Robustness across an ensemble" section (the Markdown of :func:`pathcast.ensemble.ensemble_robustness_section`,
-turned into blocks) with the ensemble's own PNG figures (copied, :class:`ImageFile`) and a provenance row. A memo of
-ensembles only has their findings, robustness sections, the cautions and the provenance.
+"Robustness across an ensemble" section (the :class:`pathcast.ensemble.robustness.RobustnessSection` the ensemble
+wrote as robustness.json, its paragraphs, tables and figure references turned into blocks) with the ensemble's own PNG
+figures (copied, :class:`ImageFile`) and a provenance row. A memo of ensembles only has their findings, robustness
+sections, the cautions and the provenance.
 
 Numbers are rounded for display by :func:`format_value`: at least three significant digits (thousands separators
 from 1,000, no decimals there; two decimals from 1 to 100; three below 1); years and counts as whole numbers.
@@ -21,13 +26,14 @@ from __future__ import annotations
 import base64
 import html
 import math
-import re
 from collections.abc import Mapping, Sequence
 from dataclasses import dataclass, field
 from pathlib import Path
 
 import pandas as pd
 
+from ..ensemble.robustness import FigureReference, RobustnessSection, SectionParagraph, SectionTable
+from ..results.assumptions import ASSUMPTION_COLUMNS, ASSUMPTIONS_TABLE
 from ..results.budget import budget_tolerance
 from ..results.compare import (
     carbon_price_in,
@@ -90,9 +96,12 @@ class Heading:
 
 @dataclass(frozen=True)
 class Paragraph:
+    """A paragraph; ``spans`` (text, style) runs with styles plain, strong or code, when parts of it stand out (then
+    ``text`` is their plain text)."""
+
     text: str
     kind: str = "text"  # text | notice (illustrative numbers) | caution
-    markup: bool = False  # True: the text holds Markdown **bold** and `code` (rendered as such in HTML)
+    spans: tuple[tuple[str, str], ...] = ()
 
 
 @dataclass(frozen=True)
@@ -126,24 +135,33 @@ class Memo:
 
 @dataclass(frozen=True)
 class MemoInput:
-    """One run for the memo: its result, its assumptions table (results.assumptions columns) and a note saying
-    where the assumptions come from when they are incomplete (empty when complete)."""
+    """One run for the memo: its result, its assumptions table (results.assumptions columns; None: the table the
+    result carries, ``result.tables["assumptions"]``) and a note saying where the assumptions come from when they are
+    incomplete (empty when complete)."""
 
     result: RunResult
-    assumptions: pd.DataFrame
+    assumptions: pd.DataFrame | None = None
     assumptions_note: str = ""
+
+    @property
+    def assumption_rows(self) -> pd.DataFrame:
+        """The assumptions table shown (empty, with its columns, when the result carries none)."""
+        if self.assumptions is not None:
+            return self.assumptions
+        table = self.result.tables.get(ASSUMPTIONS_TABLE)
+        return table if table is not None else pd.DataFrame(columns=list(ASSUMPTION_COLUMNS))
 
 
 @dataclass(frozen=True)
 class MemoEnsemble:
-    """One ensemble folder for the memo: its robustness section (Markdown of
-    :func:`pathcast.ensemble.ensemble_robustness_section`, figure links to the PNG files in ``figure_files``), the
-    numbers its finding quotes and its provenance. Costs in million currency units of the price year, budgets in
+    """One ensemble folder for the memo: its robustness section (:func:`pathcast.ensemble.outputs.read_robustness`;
+    its figure references name PNG files of the folder's figures/, listed in ``figure_files``), the numbers its
+    finding quotes and its provenance. Costs in million currency units of the price year, budgets in
     MtCO2; ``probability_within_budget`` is a share (0-1), NaN when no member has a carbon budget."""
 
     folder: Path
     name: str
-    section: str
+    section: RobustnessSection
     base: str  # the base scenario file
     base_hash: str  # its input hash (LoadedScenario.input_hash), as in a result folder's manifest
     file: str  # the ensemble file
@@ -415,8 +433,6 @@ def _ensemble_finding(ensemble: MemoEnsemble, around: str) -> str:
     return " ".join(text)
 
 
-_IMAGE = re.compile(r"^!\[(?P<alt>[^\]]*)\]\((?P<path>[^)]+)\)$")
-_RULE = re.compile(r"^\|[\s:|-]+\|$")
 _ENSEMBLE_CAPTIONS = {
     "emissions_fan": "Yearly CO2 emissions [MtCO2/yr] and cumulative CO2 in the budget period [MtCO2] across the "
     "members: median, 25-75 % and 5-95 % bands, against the budget.",
@@ -431,49 +447,31 @@ _ENSEMBLE_CAPTIONS = {
 }
 
 
-def _cells(line: str) -> tuple[str, ...]:
-    return tuple(c.strip().replace("\\|", "|") for c in re.split(r"(?<!\\)\|", line.strip())[1:-1])
-
-
-def section_blocks(markdown: str, ensemble: MemoEnsemble, prefix: str, first_number: int) -> list:
-    """Blocks of an ensemble's robustness section (Markdown with headings, paragraphs, pipe tables and image lines):
-    each linked figure becomes an :class:`ImageFile` named ``<prefix>_<stem>`` with a numbered caption from
-    ``first_number``, followed by the ensemble's other figures; a missing figure file becomes a note."""
-    blocks: list = []
+def section_blocks(
+    section: RobustnessSection, ensemble: MemoEnsemble, prefix: str, first_number: int
+) -> list:
+    """Blocks of an ensemble's robustness section: its title as a heading, its paragraphs and tables, and each figure
+    reference as an :class:`ImageFile` named ``<prefix>_<name>`` (the PNG in the ensemble folder's figures/) with a
+    numbered caption from ``first_number``, followed by the ensemble's other figures; a missing figure file becomes
+    a note."""
+    blocks: list = [Heading(section.title, 2)]
     number = first_number - 1
     linked: set[str] = set()
-    paragraph: list[str] = []
-    table: list[str] = []
     last_image = None
-
-    def flush() -> None:
-        if paragraph:
-            blocks.append(Paragraph(" ".join(paragraph), markup=True))
-            paragraph.clear()
-        if table:
-            rows = [_cells(line) for line in table if not _RULE.match(line.strip())]
-            blocks.append(Table(rows[0], tuple(rows[1:])))
-            table.clear()
-
-    for raw in markdown.splitlines():
-        line = raw.strip()
-        image = _IMAGE.match(line)
-        if not line or line.startswith("#") or image or (line.startswith("|") and not table and paragraph):
-            flush()
-        if not line:
-            continue
-        if line.startswith("#"):
-            level = len(line) - len(line.lstrip("#"))
-            blocks.append(Heading(line[level:].strip(), level))
-        elif image:
-            source = Path(image["path"])
-            linked.add(source.stem)
+    for block in section.blocks:
+        if isinstance(block, SectionParagraph):
+            blocks.append(Paragraph(block.text, spans=tuple((s.text, s.style) for s in block.spans)))
+        elif isinstance(block, SectionTable):
+            blocks.append(Table(tuple(c.name for c in block.columns), block.rows, block.caption))
+        elif isinstance(block, FigureReference):
+            source = Path(ensemble.folder) / block.file
+            linked.add(block.name)
             if source.is_file():
                 number += 1
-                caption = _ENSEMBLE_CAPTIONS.get(source.stem, image["alt"].rstrip(".") + ".")
+                caption = _ENSEMBLE_CAPTIONS.get(block.name, block.caption.rstrip(".") + ".")
                 blocks.append(
                     ImageFile(
-                        f"{prefix}_{source.stem}",
+                        f"{prefix}_{block.name}",
                         source,
                         f"Figure {number}. Ensemble {ensemble.name}: {caption}",
                     )
@@ -487,13 +485,6 @@ def section_blocks(markdown: str, ensemble: MemoEnsemble, prefix: str, first_num
                     )
                 )
             last_image = len(blocks)
-        elif line.startswith("|"):
-            table.append(line)
-        else:
-            if table:
-                flush()
-            paragraph.append(line)
-    flush()
     extra = []
     known = list(_ENSEMBLE_CAPTIONS)
     order = sorted(
@@ -546,7 +537,7 @@ _OVERLAY_CAPTIONS = {
 
 def _assumption_tables(inputs: Sequence[MemoInput], labels: list[str]) -> list:
     blocks: list = []
-    first = inputs[0].assumptions
+    first = inputs[0].assumption_rows
     header = ("section", "subject", "item", "value", "unit", "source")
 
     def rows_of(frame: pd.DataFrame) -> tuple[tuple[str, ...], ...]:
@@ -563,7 +554,7 @@ def _assumption_tables(inputs: Sequence[MemoInput], labels: list[str]) -> list:
         blocks.append(Table(columns, rows, f"Assumptions{who}: {section}."))
     key = ["section", "subject", "item"]
     for memo_input, label in zip(inputs[1:], labels[1:], strict=True):
-        other = memo_input.assumptions
+        other = memo_input.assumption_rows
         if memo_input.assumptions_note:
             blocks.append(Paragraph(f"{label}: {memo_input.assumptions_note}"))
         merged = other.merge(first[key + ["value", "unit"]], on=key, how="left", suffixes=("", "_first"))
@@ -755,7 +746,8 @@ def render_markdown(memo: Memo, figure_folder: str = "figures") -> str:
         elif isinstance(block, Paragraph):
             prefix = {"notice": "> **", "caution": "> "}.get(block.kind, "")
             suffix = "**" if block.kind == "notice" else ""
-            lines += [prefix + block.text + suffix, ""]
+            text = _spans_markdown(block.spans) if block.spans else block.text
+            lines += [prefix + text + suffix, ""]
         elif isinstance(block, Table):
             lines.append("| " + " | ".join(_md_cell(h) for h in block.header) + " |")
             lines.append("|" + "|".join("---" for _ in block.header) + "|")
@@ -798,11 +790,24 @@ def _is_number(text: str) -> bool:
         return False
 
 
-def _inline_html(text: str) -> str:
-    """Escaped HTML of a Markdown line with **bold** and `code` spans."""
-    text = html.escape(text)
-    text = re.sub(r"`([^`]+)`", r"<code>\1</code>", text)
-    return re.sub(r"\*\*(.+?)\*\*", r"<strong>\1</strong>", text)
+def _spans_markdown(spans: Sequence[tuple[str, str]]) -> str:
+    parts = []
+    for text, style in spans:
+        if style == "strong":
+            parts.append(f"**{text}**")
+        elif style == "code":
+            parts.append(f"`` {text} ``" if "`" in text else f"`{text}`")
+        else:
+            parts.append(text)
+    return "".join(parts)
+
+
+def _spans_html(spans: Sequence[tuple[str, str]]) -> str:
+    tags = {"strong": "strong", "code": "code"}
+    return "".join(
+        f"<{tags[style]}>{html.escape(text)}</{tags[style]}>" if style in tags else html.escape(text)
+        for text, style in spans
+    )
 
 
 def render_html(memo: Memo, pngs: Mapping[str, bytes]) -> str:
@@ -825,7 +830,7 @@ def render_html(memo: Memo, pngs: Mapping[str, bytes]) -> str:
             parts.append(f"<h{block.level}>{esc(block.text)}</h{block.level}>")
         elif isinstance(block, Paragraph):
             css = f' class="{block.kind}"' if block.kind != "text" else ""
-            text = _inline_html(block.text) if block.markup else esc(block.text)
+            text = _spans_html(block.spans) if block.spans else esc(block.text)
             parts.append(f"<p{css}>{text}</p>")
         elif isinstance(block, Table):
             parts.append("<table>")

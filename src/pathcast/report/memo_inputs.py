@@ -111,15 +111,15 @@ def _base_illustrative(base: str, base_hash: str) -> bool:
 
 
 def read_ensemble(folder: Path) -> MemoEnsemble:
-    """An ensemble folder of 'pathcast ensemble' as memo input: its robustness section (figure links into the
-    folder's own figures/) and the numbers of the finding, both summarised from its member records."""
-    from ..ensemble import ensemble_robustness_section
+    """An ensemble folder of 'pathcast ensemble' as memo input: its robustness section (robustness.json, figure
+    references into the folder's own figures/) and the numbers of the finding, summarised from its member records."""
+    from ..ensemble.outputs import read_robustness
     from ..ensemble.summary import summarise_ensemble
     from .memo import MemoEnsemble
 
     folder = Path(folder)
     summary = summarise_ensemble(folder)
-    section = ensemble_robustness_section(folder, heading_level=2)
+    section = read_robustness(folder, summary)
     design, stats = summary.design, summary.stats
     cost = summary.headline_percentiles.set_index("quantity")
     if "total_discounted_cost_million" in cost.index and cost.loc["total_discounted_cost_million", "members"]:

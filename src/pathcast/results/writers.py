@@ -12,7 +12,7 @@ import pandas as pd
 
 from ..errors import ScenarioError
 from .folders import atomic_folder
-from .run_result import OPTIONAL_TABLES, TABLES, RunResult
+from .run_result import OPTIONAL_TABLES, TABLES, TEXT_TABLES, RunResult
 
 __all__ = ["write_result", "read_result", "atomic_folder", "spreadsheet_safe", "FORMULA_STARTS"]
 
@@ -110,7 +110,8 @@ def read_result(folder: Path) -> RunResult:
                 f"{folder}: {name}.csv: got no such file; expected every table of a pathcast result folder.",
                 file=str(folder),
             )
-        frame = pd.read_csv(path)
+        text = {"dtype": str, "keep_default_na": False} if name in TEXT_TABLES else {}
+        frame = pd.read_csv(path, **text)
         for column in frame.columns:
             if frame[column].dtype == object or pd.api.types.is_string_dtype(frame[column]):
                 frame[column] = frame[column].map(_unescape_cell)
