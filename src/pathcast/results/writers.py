@@ -31,7 +31,8 @@ def _json_default(value):
 
 
 def _escape_cell(value):
-    if isinstance(value, str) and value.startswith(FORMULA_STARTS):
+    # a lone "-" (a dimensionless unit, an empty mark) cannot be a formula and stays as it is
+    if isinstance(value, str) and value.startswith(FORMULA_STARTS) and value != "-":
         return "'" + value
     return value
 
@@ -57,7 +58,7 @@ def spreadsheet_safe(frame: pd.DataFrame) -> pd.DataFrame:
     needs = [
         c
         for c in text_columns
-        if frame[c].map(lambda v: isinstance(v, str) and v.startswith(FORMULA_STARTS)).any()
+        if frame[c].map(lambda v: _escape_cell(v) is not v).any()
     ]
     if not needs:
         return frame
