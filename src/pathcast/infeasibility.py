@@ -31,7 +31,7 @@ from .model.names import (
     NEW,
     RESERVE_MARGIN,
 )
-from .scenario.inputs import ModelInputs
+from .scenario.inputs import ModelInputs, present
 from .solve import CONFLICT_TIME_LIMIT_S, Conflict, highs_lp, new_highs
 
 __all__ = ["ConflictMember", "conflict_members", "limits_in_scenario", "explain_no_optimum", "SHOWN_AT_MOST"]
@@ -138,13 +138,13 @@ def conflict_members(model: PathwayModel, conflict: Conflict) -> tuple[ConflictM
             if member is not None:
                 found.append(member)
     merged: dict[tuple, list] = {}  # key -> [member of the earliest year, that year, all years]
-    for member, year in found:
+    for member, member_year in found:
         key = (member.kind, member.role, member.subject, member.detail, member.fields)
-        entry = merged.setdefault(key, [member, year, set()])
-        if year is not None:
-            entry[2].add(year)
-            if entry[1] is None or year < entry[1]:
-                entry[0], entry[1] = member, year
+        entry = merged.setdefault(key, [member, member_year, set()])
+        if member_year is not None:
+            entry[2].add(member_year)
+            if entry[1] is None or member_year < entry[1]:
+                entry[0], entry[1] = member, member_year
     return tuple(
         ConflictMember(
             kind=m.kind,
@@ -240,7 +240,7 @@ def _row_member(name: str, index: tuple[int, ...], inputs: ModelInputs, ctx, yea
         )
         return member, years[y]
     if name == "carbon_budget":
-        first, last = inputs.budget_years
+        first, last = present(inputs.budget_years)
         detail = f"{inputs.budget_mt:,.1f} MtCO2 for {first}-{last}"
         return ConflictMember(
             "carbon budget", "limit", detail=detail, fields=("policy.carbon_budget.total_mt",)
@@ -252,9 +252,10 @@ def _row_member(name: str, index: tuple[int, ...], inputs: ModelInputs, ctx, yea
             "yearly emission cap", "limit", detail=detail, fields=(f"policy.emission_caps_mt.{year}",)
         ), int(year)
     if name == "clean_electricity_share":
-        active = np.flatnonzero(~np.isnan(inputs.clean_share))
+        clean_share = present(inputs.clean_share)  # the row exists only with a clean-electricity share
+        active = np.flatnonzero(~np.isnan(clean_share))
         y = int(active[index[0]])
-        detail = f"{100 * inputs.clean_share[y]:.0f} % of generation"
+        detail = f"{100 * clean_share[y]:.0f} % of generation"
         return ConflictMember(
             "clean-electricity share", "target", detail=detail, fields=("policy.clean_electricity_share",)
         ), years[y]

@@ -28,7 +28,7 @@ from ..errors import InfeasibleError
 from ..pipeline import Run, run_scenario, solve_inputs
 from ..results.budget import budget_tolerance
 from ..scenario.extensions import ExtensionSpec
-from ..scenario.inputs import ModelInputs
+from ..scenario.inputs import ModelInputs, present
 from ..scenario.loader import LoadedScenario
 from .variants import cap_unserved, emissions_only, without_budget
 
@@ -236,12 +236,12 @@ def binding_limits(run: Run, *, top: int | None = None) -> tuple[BindingLimit, .
         ("storage_duration_max", "storage duration"),
         ("storage_duration_min", "storage duration"),
     ):
-        block = lp.row_blocks.get(row_name)
-        if block is None or block.size == 0:
+        row_block = lp.row_blocks.get(row_name)
+        if row_block is None or row_block.size == 0:
             continue
-        dual = solution.row_dual[offsets[row_name] : offsets[row_name] + block.size]
+        dual = solution.row_dual[offsets[row_name] : offsets[row_name] + row_block.size]
         for i in np.flatnonzero(np.abs(dual) > _MARGINAL_TOLERANCE):
-            year = years[i % len(years)] if block.size % len(years) == 0 else None
+            year = years[i % len(years)] if row_block.size % len(years) == 0 else None
             note(kind, row_name.replace("_", " "), year, None, "", abs(float(dual[i])))
 
     limits = [
@@ -375,7 +375,7 @@ def confirm_limits(
             continue
         if minimum_mt - lower > tolerance:
             confirmed.append(replace(limit, relaxation=text, cut_mtco2=minimum_mt - lower))
-    confirmed.sort(key=lambda b: -b.cut_mtco2)
+    confirmed.sort(key=lambda b: -(b.cut_mtco2 or 0.0))  # every confirmed limit has its cut
     kept.sort(key=lambda b: b.kind == "no extra unserved energy")
     return tuple(confirmed + kept)
 
@@ -396,13 +396,13 @@ def diagnose_budget(
     if inputs.budget_mt is None:
         return None
     say = progress or (lambda _m: None)
-    first, last = inputs.budget_years
+    first, last = present(inputs.budget_years)
     infeasible = budget_infeasible
     if budget_run is None and not infeasible:
         say("solving under the budget")
         solved = _solve(inputs, solver)
         infeasible = isinstance(solved, InfeasibleError)
-        budget_run = None if infeasible else solved
+        budget_run = None if isinstance(solved, InfeasibleError) else solved
     no_budget_run = None
     extra_el = extra_fuel = 0.0
     shed = budget_run is not None and (
@@ -423,8 +423,11 @@ def diagnose_budget(
         if budget_run is not None:
             extra_el, extra_fuel = extra_unserved(budget_run, no_budget_run)
     achievable = not infeasible and extra_el <= UNSERVED_TOLERANCE and extra_fuel <= UNSERVED_TOLERANCE
-    tightest, binding = math.nan, ()
+    tightest = math.nan
+    binding: tuple[BindingLimit, ...] = ()
     if not achievable or always_minimum:
+        # solved above: without the budget whenever it is infeasible, sheds energy or always_minimum is asked
+        assert no_budget_run is not None
         say("solving for the minimum cumulative emissions")
         minimum = minimum_budget_emissions(inputs, no_budget_run, solver=solver)
         tightest = float(minimum.solution.objective)

@@ -35,7 +35,7 @@ from ..errors import ScenarioError
 from ..pipeline import Run, solve_inputs
 from ..results.budget import BudgetTerms
 from ..results.reduction_rates import BudgetExhaustedError, realised_rates, required_rate_exponential
-from ..scenario.inputs import ModelInputs
+from ..scenario.inputs import ModelInputs, present
 from .achievability import BudgetDiagnosis, diagnose_budget
 from .stranded import stranded_capacity
 from .variants import fix_history, reference_inputs
@@ -129,7 +129,7 @@ class DelayStudy:
 
 def _check_starts(inputs: ModelInputs, start_years: Sequence[int]) -> list[int]:
     first_model, last_model = int(inputs.years[0]), int(inputs.years[-1])
-    first, last = inputs.budget_years
+    first, last = present(inputs.budget_years)
     latest = min(last, last_model)
     starts = sorted({int(s) for s in start_years})
     if not starts:
@@ -147,6 +147,7 @@ def _case(inputs: ModelInputs, reference: Run, start: int, solver: dict | None, 
     case_inputs = inputs if start <= int(inputs.years[0]) else fix_history(inputs, reference, start)
     say(f"start {start}: least-cost pathway under the budget from {start} on")
     diagnosis = diagnose_budget(case_inputs, solver=solver, progress=say)
+    assert diagnosis is not None  # None only without a budget, which the study refuses first
     run = diagnosis.budget_run
     stranded = stranded_capacity(run.result, case_inputs) if run is not None else stranded_capacity_empty()
     return DelayCase(start_year=start, inputs=case_inputs, run=run, diagnosis=diagnosis, stranded=stranded)
@@ -182,7 +183,7 @@ def delayed_action(
             field="policy.carbon_budget",
         )
     starts = _check_starts(inputs, start_years)
-    first, last = inputs.budget_years
+    first, last = present(inputs.budget_years)
     terms = BudgetTerms(float(inputs.budget_mt), int(first), int(last))
     say("solving the reference pathway (no budget, caps or carbon price)")
     reference = solve_inputs(reference_inputs(inputs), solver=solver)
@@ -202,7 +203,7 @@ def delayed_action(
             rate = required_rate_exponential(e0, remaining, count_start_year=False)
         except BudgetExhaustedError:
             rate = math.nan
-        row = {
+        row: dict[str, float | None] = {
             "start_year": s,
             "emissions_before_action_mtco2": e0,
             "remaining_budget_mtco2": remaining,

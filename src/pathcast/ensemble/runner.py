@@ -25,6 +25,7 @@ import warnings
 from collections.abc import Callable, Iterator
 from dataclasses import dataclass, field, replace
 from pathlib import Path
+from typing import TYPE_CHECKING
 
 from ..errors import PathcastError
 from ..pipeline import package_versions
@@ -41,6 +42,9 @@ from .scheduler import (
 from .spec import EnsembleSpec, load_ensemble
 from .store import MemberStore, remove_leftovers, write_json_atomic
 from .worker import MemberTask, SharedContext, solve_base, solve_member
+
+if TYPE_CHECKING:  # dask is imported only when a cluster is started
+    from distributed import LocalCluster
 
 __all__ = ["run_ensemble", "EnsembleRun", "ProgressBar", "plan_members", "write_design"]
 
@@ -200,7 +204,7 @@ class _Dask:
     ):
         self.requested, self.scheduler, self.client, self.own = workers, scheduler, client, client is None
         self.connect_timeout = connect_timeout
-        self.cluster = None
+        self.cluster: LocalCluster | None = None  # started here (and closed on exit) when no client is given
 
     def __enter__(self):
         try:
@@ -336,6 +340,7 @@ def run_ensemble(
         ensemble_file=str(spec.path),
         input_paths={label: item.path for label, item in spec.file.inputs.items()},
     )
+    executor: _Serial | _Dask
     if serial or not todo:
         executor = _Serial()
     else:

@@ -31,6 +31,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from ..scenario.inputs import OperatingReserveInputs, present
 from .context import BuildContext, read_only
 from .names import (
     CHARGE,
@@ -74,7 +75,7 @@ def add_flexibility(ctx: BuildContext) -> None:
     online_techs, reserve = ctx.online_generators, ctx.inputs.operating_reserve
     reserve_held = _add_online_limits(ctx) if online_techs else None
     if reserve is not None:
-        _add_operating_reserve(ctx, reserve_held)
+        _add_operating_reserve(ctx, reserve_held, reserve)
 
 
 def _add_online_limits(ctx: BuildContext):
@@ -88,7 +89,7 @@ def _add_online_limits(ctx: BuildContext):
     P = _generation_of(ctx, techs)
 
     # U <= availability x capacity in service
-    availability = np.stack([t.availability for t in techs])[:, None, :, :]  # [G, 1, D, H]
+    availability = np.stack([present(t.availability) for t in techs])[:, None, :, :]  # [G, 1, D, H]
     capacity = np.broadcast_to(ctx.capacity_columns(techs)[:, :, None, None], shape)
     rows = lp.add_rows(ONLINE_CAPACITY_LIMIT, DIMS, shape, "<=", "GW")
     r = rows.local()
@@ -155,9 +156,8 @@ def _add_online_limits(ctx: BuildContext):
     return reserve_block
 
 
-def _add_operating_reserve(ctx: BuildContext, reserve_block) -> None:
+def _add_operating_reserve(ctx: BuildContext, reserve_block, reserve: OperatingReserveInputs) -> None:
     lp, inputs, Y, D, H = ctx.lp, ctx.inputs, ctx.Y, ctx.D, ctx.H
-    reserve = inputs.operating_reserve
     hourly = (Y, D, H)
 
     storage_block = None
@@ -209,7 +209,7 @@ def _add_operating_reserve(ctx: BuildContext, reserve_block) -> None:
             rows.add(
                 r,
                 np.broadcast_to(capacity[v][:, None, None], hourly),
-                -reserve.variable_renewable_share * np.broadcast_to(t.availability[None], hourly),
+                -reserve.variable_renewable_share * np.broadcast_to(present(t.availability)[None], hourly),
             )
 
 
@@ -261,7 +261,9 @@ def read_flexibility(ctx: BuildContext, x: np.ndarray, row_dual: np.ndarray) -> 
         variable = [t for t in ctx.generators if t.variable_renewable]
         if variable and reserve.variable_renewable_share > 0:
             capacity = x[ctx.capacity_columns(variable)]  # [V, Y]
-            available = capacity[:, :, None, None] * np.stack([t.availability for t in variable])[:, None]
+            available = (
+                capacity[:, :, None, None] * np.stack([present(t.availability) for t in variable])[:, None]
+            )
             requirement = requirement + reserve.variable_renewable_share * available.sum(axis=0)
         shortfall = ctx.column_values(RESERVE_SHORTFALL, x)
         dual = ctx.row_values(OPERATING_RESERVE, row_dual)

@@ -26,6 +26,7 @@ import numpy as np
 import pandas as pd
 
 from ..model.solution_values import SolutionValues
+from ..scenario.inputs import present
 
 __all__ = ["cost_recovery_tables", "capacity_price_table", "COST_RECOVERY_COLUMNS", "VINTAGE_COLUMNS"]
 
@@ -154,8 +155,9 @@ def cost_recovery_tables(values: SolutionValues) -> tuple[pd.DataFrame, pd.DataF
             vom = dispatch.variable_om_million[g]
             if t.name in burner_row:
                 burned = fuels.fuel_use_pj[burner_row[t.name]]
-                fuel_cost = burned * fuel_price[t.fuel]
-                carbon_cost = burned * inputs.emission_factor.get(t.fuel, 0.0) * carbon
+                fuel = present(t.fuel)
+                fuel_cost = burned * fuel_price[fuel]
+                carbon_cost = burned * inputs.emission_factor.get(fuel, 0.0) * carbon
             generation_twh = (output * w).sum(axis=(1, 2)) / 1000.0
             clean = clean_price * generation_twh * (float(t.clean) - share)
         elif t.kind == "storage":
@@ -169,13 +171,13 @@ def cost_recovery_tables(values: SolutionValues) -> tuple[pd.DataFrame, pd.DataF
             c = electric_row[t.name]
             energy = -(fuels.converter_power_gw[c] * to_million).sum(axis=(1, 2))
             made = fuels.electric_conversion_output_pj[c]
-            fuel_revenue = made * fuel_price[t.output]
+            fuel_revenue = made * fuel_price[present(t.output)]
             carbon_cost = made * t.process_emission_factor * carbon
             vom = fuels.converter_variable_om_million[c]
         else:
             c = fuel_conv_row[t.name]
             made, taken = fuels.fuel_conversion_output_pj[c], fuels.converter_input_pj[c]
-            fuel_revenue = made * fuel_price[t.output] - taken * fuel_price[t.input]
+            fuel_revenue = made * fuel_price[present(t.output)] - taken * fuel_price[present(t.input)]
             carbon_cost = made * t.process_emission_factor * carbon
             vom = fuels.converter_variable_om_million[len(fuels.electric_converters) + c]
         if t.credit_tranches:  # every GW earns the capacity price x the marginal tranche's credit
@@ -183,10 +185,16 @@ def cost_recovery_tables(values: SolutionValues) -> tuple[pd.DataFrame, pd.DataF
         else:
             capacity_revenue = capacity_price * values.firm.firm_gw[i]
         reserve = reserve_revenue.get(t.name, zeros)
-        if reserve_revenue and t.kind == "generator" and t.variable_renewable and reserve_share:
+        if (
+            flexibility is not None
+            and reserve_revenue
+            and t.kind == "generator"
+            and t.variable_renewable
+            and reserve_share
+        ):
             # variable output raises the reserve requirement: share x available output x the hourly reserve price
             price_h = flexibility.reserve_price_per_mw_hour  # [Y, D, H] currency/MW per hour
-            available = t.availability[None] * capacity[:, None, None]  # [Y, D, H] GW
+            available = present(t.availability)[None] * capacity[:, None, None]  # [Y, D, H] GW
             reserve = reserve - reserve_share * (price_h * available * w).sum(axis=(1, 2)) / 1000.0
         margin = energy + fuel_revenue - fuel_cost - carbon_cost - vom + clean + reserve
         net = margin + capacity_revenue - fixed - ann

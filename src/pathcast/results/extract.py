@@ -270,7 +270,8 @@ def emissions_tables(values: SolutionValues) -> tuple[pd.DataFrame, pd.DataFrame
     emissions_total = pd.DataFrame(
         {"year": years, "emissions_mtco2": total, "cumulative_mtco2": np.cumsum(total)}
     )
-    if policy.budget_mtco2 is not None:
+    # read_policy sets the budget and its years together, or neither
+    if policy.budget_mtco2 is not None and policy.budget_years is not None:
         first, last = policy.budget_years
         year_array = np.asarray(years)
         inside = (year_array >= first) & (year_array <= last)
