@@ -197,7 +197,7 @@ def scalar_text(value: Any) -> str:
     """One YAML flow node (scalar, list or mapping) on one line, as PyYAML would read it back."""
     if isinstance(value, Raw):
         return value.text
-    text = yaml.safe_dump(value, default_flow_style=True, allow_unicode=True, width=2**30)
+    text = yaml.safe_dump(value, default_flow_style=True, allow_unicode=True, width=2**30, sort_keys=False)
     if text.endswith("\n...\n"):
         text = text[: -len("\n...\n")]
     return text.rstrip("\n")
