@@ -219,7 +219,8 @@ def add_capacity(ctx: BuildContext) -> None:
         duration = np.array([[t.max_duration_h] for t in storage])
         upper_total = np.where(
             np.isfinite(duration),
-            max_power * np.where(np.isfinite(duration), duration, 0.0),
+            max_power
+            * np.where(np.isfinite(duration), duration, 1.0),  # (1.0: no inf x 0 where not selected)
             np.where(max_power == 0.0, 0.0, np.inf),
         )
         # storage energy is built where power may be (committed energy in the other years)
