@@ -152,6 +152,8 @@ def render_rates(report: RatesReport) -> str:
     """The rates table of ``pathcast rates``: required rates by start year [%/yr], realised compound rates per
     period [%/yr], the steepest yearly cut, the budget's exhaustion year and headroom [MtCO2] and the TCRE warming."""
     a, terms = report.account, report.account.terms
+    # compute_rates refuses a run without a budget, so the account has its terms and its final headroom
+    assert terms is not None and a.headroom_final_mtco2 is not None
     lines = [
         f"Required reduction rates, scenario {report.result.scenario_name!r}: budget {terms.budget_mt:,.1f} MtCO2 "
         f"for {terms.first_year}-{terms.last_year}",
