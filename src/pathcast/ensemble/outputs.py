@@ -44,6 +44,7 @@ import tempfile
 import time
 import uuid
 from pathlib import Path
+from typing import Any
 
 import pandas as pd
 
@@ -305,7 +306,7 @@ def write_ensemble_outputs(
     stage = Path(tempfile.mkdtemp(prefix=temporary_prefix("outputs"), dir=folder))
     try:
         _write_set(summary, stage, figures, run_id)
-        manifest = {
+        manifest: dict[str, Any] = {
             "written_by": "pathcast ensemble",
             "run_id": run_id,
             "written_at": time.strftime("%Y-%m-%dT%H:%M:%S%z"),
