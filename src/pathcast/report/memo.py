@@ -29,6 +29,7 @@ import math
 from collections.abc import Mapping, Sequence
 from dataclasses import dataclass, field
 from pathlib import Path
+from typing import TYPE_CHECKING
 
 import pandas as pd
 
@@ -46,6 +47,9 @@ from ..results.run_result import RunResult
 from ..results.writers import atomic_folder
 from .console import CAUTION
 from .figures import OVERLAY_FIGURES, SCENARIO_FIGURES, save_figure
+
+if TYPE_CHECKING:  # annotations only: matplotlib is loaded by .figures when a figure is drawn
+    from matplotlib.figure import Figure
 
 __all__ = [
     "MemoInput",
@@ -114,7 +118,7 @@ class Table:
 @dataclass(frozen=True)
 class FigureBlock:
     name: str  # file stem under figures/
-    figure: object = field(repr=False)  # matplotlib Figure
+    figure: Figure = field(repr=False)
     caption: str = ""
 
 
@@ -201,7 +205,7 @@ def format_value(value: object, metric: str = "") -> str:
     if isinstance(value, str):
         return value
     try:
-        number = float(value)
+        number = float(value)  # type: ignore[arg-type]  # any value: what float() refuses is caught below
     except (TypeError, ValueError):
         return str(value)
     if math.isnan(number):
@@ -394,7 +398,7 @@ def _finding(result: RunResult, label: str, column: pd.Series, results: Sequence
 
 def _nan(value: object) -> bool:
     try:
-        return math.isnan(float(value))
+        return math.isnan(float(value))  # type: ignore[arg-type]  # any value: what float() refuses is caught below
     except (TypeError, ValueError):
         return False
 
@@ -603,7 +607,8 @@ def build_memo(inputs: Sequence[MemoInput], ensembles: Sequence[MemoEnsemble] = 
             )
         )
     findings = [
-        _finding(result, label, table[label], results) for result, label in zip(results, labels, strict=True)
+        _finding(result, label, table[label], results)  # type: ignore[index]  # table is None only without results
+        for result, label in zip(results, labels, strict=True)
     ]
     for ensemble in ensembles:
         hashes = [str(r.manifest.get("input_hash", "")) for r in results]
@@ -677,7 +682,7 @@ def build_memo(inputs: Sequence[MemoInput], ensembles: Sequence[MemoEnsemble] = 
     )
     blocks.append(Heading("Provenance"))
     if results:
-        rows = []
+        rows: list[tuple[str, ...]] = []
         for result, label in zip(results, labels, strict=True):
             manifest = result.manifest
             solver = manifest.get("solver", {}) or {}
