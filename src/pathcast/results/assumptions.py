@@ -23,9 +23,11 @@ import pandas as pd
 
 from ..scenario.learning import capex_path
 from ..scenario.loader import LoadedScenario
-from ..scenario.schema import CapexPath, Metadata, Policy
+from ..scenario.schema import CapexPath, Converter, Generator, Metadata, Policy, Storage
 
 if TYPE_CHECKING:
+    from pydantic import BaseModel
+
     from .run_result import RunResult
 
 __all__ = [
@@ -86,7 +88,7 @@ def _raw_at(raw: Mapping, path: tuple) -> Any:
     return node
 
 
-def _default_note(model: type, field: str) -> str:
+def _default_note(model: type[BaseModel], field: str) -> str:
     description = model.model_fields[field].description or ""
     cited = [
         part.strip()
@@ -101,7 +103,9 @@ class _Rows:
         self.loaded = loaded
         self.rows: list[tuple[str, str, str, str, str, str]] = []
 
-    def source(self, path: tuple, default_model: type | None = None, field: str | None = None) -> str:
+    def source(
+        self, path: tuple, default_model: type[BaseModel] | None = None, field: str | None = None
+    ) -> str:
         if _raw_at(self.loaded.raw, path) is None and default_model is not None and field is not None:
             return _default_note(default_model, field)
         return Path(self.loaded.file_of(path)).name
@@ -122,12 +126,10 @@ def _capex_rows(
     rows.add("technologies", name, item.replace("_", " "), text, unit, source)
     if path.learning_rate is not None:
         deployment = path.cumulative_deployment
-        first, last = (min(deployment), max(deployment)) if isinstance(deployment, dict) else (None, None)
-        span = (
-            f" (cumulative deployment {_number(deployment[first])} GW in {first} to {_number(deployment[last])} GW in {last})"
-            if first is not None
-            else ""
-        )
+        span = ""
+        if isinstance(deployment, dict):
+            first, last = min(deployment), max(deployment)
+            span = f" (cumulative deployment {_number(deployment[first])} GW in {first} to {_number(deployment[last])} GW in {last})"
         rows.add(
             "technologies",
             name,
@@ -257,7 +259,7 @@ def assumptions_table(loaded: LoadedScenario) -> pd.DataFrame:
 
     # --- demand --------------------------------------------------------------------------------------------------
     el = scenario.demand.electricity
-    where = ("demand", "electricity")
+    where: tuple[str, ...] = ("demand", "electricity")
     if el.yearly_twh is not None:
         rows.add(
             "demand",
@@ -272,7 +274,7 @@ def assumptions_table(loaded: LoadedScenario) -> pd.DataFrame:
             "demand",
             "electricity",
             "final demand in the base year",
-            _number(el.base_year_twh),
+            _number(el.base_year_twh),  # type: ignore[arg-type]  # set when yearly_twh is not (schema validator)
             "TWh/yr",
             rows.source(where + ("base_year_twh",)),
         )
@@ -294,7 +296,7 @@ def assumptions_table(loaded: LoadedScenario) -> pd.DataFrame:
                 "demand",
                 name,
                 f"final demand in the base year (served by {served})",
-                _number(fuel.base_year_pj),
+                _number(fuel.base_year_pj),  # type: ignore[arg-type]  # set when yearly_pj is not (schema validator)
                 "PJ/yr",
                 rows.source(where + ("base_year_pj",)),
             )
@@ -311,7 +313,7 @@ def assumptions_table(loaded: LoadedScenario) -> pd.DataFrame:
             where = ("technologies", group, name)
             per = "kW of input" if group == "converters" else "kW"
             _capex_rows(rows, where, name, "capex", tech.capex, f"{currency}/{per}", years)
-            if group == "storage":
+            if isinstance(tech, Storage):
                 _capex_rows(rows, where, name, "energy_capex", tech.energy_capex, f"{currency}/kWh", years)
             rows.add(
                 "technologies",
@@ -330,8 +332,8 @@ def assumptions_table(loaded: LoadedScenario) -> pd.DataFrame:
                     f"{currency}/MWh",
                     rows.source(where + ("variable_om",)),
                 )
-            if group == "generators" and (tech.efficiency is not None or tech.heat_rate is not None):
-                efficiency = tech.efficiency if tech.efficiency is not None else 3.6 / tech.heat_rate
+            if isinstance(tech, Generator) and (tech.efficiency is not None or tech.heat_rate is not None):
+                efficiency = tech.efficiency if tech.efficiency is not None else 3.6 / tech.heat_rate  # type: ignore[operator]  # set when efficiency is not
                 rows.add(
                     "technologies",
                     name,
@@ -340,7 +342,7 @@ def assumptions_table(loaded: LoadedScenario) -> pd.DataFrame:
                     "-",
                     rows.source(where + ("efficiency" if tech.efficiency is not None else "heat_rate",)),
                 )
-            elif group == "converters":
+            elif isinstance(tech, Converter):
                 rows.add(
                     "technologies",
                     name,
@@ -349,7 +351,7 @@ def assumptions_table(loaded: LoadedScenario) -> pd.DataFrame:
                     "-",
                     rows.source(where + ("efficiency",)),
                 )
-            elif group == "storage":
+            elif isinstance(tech, Storage):
                 rows.add(
                     "technologies",
                     name,
