@@ -74,6 +74,7 @@ def test_serial_run_writes_members_tables_and_figures(serial_lhs):
     assert summary["probability_within_budget"] == 1.0
 
 
+@pytest.mark.slow  # starts a local dask cluster of worker processes (about 4-6 s)
 def test_distributed_run_equals_serial_run(serial_lhs, tmp_path):
     distributed = run_ensemble(serial_lhs.spec, tmp_path / "dask", workers=2, progress=False, figures=False)
     assert distributed.mode == "local cluster" and distributed.workers == 2
@@ -225,6 +226,7 @@ inputs:
     )
 
 
+@pytest.mark.slow  # starts a local dask cluster for the CLI to connect to (about 2-3 s)
 def test_cli_connects_to_an_existing_scheduler(data_dir, tmp_path, capsys):
     from distributed import LocalCluster
 

@@ -55,11 +55,7 @@ def spreadsheet_safe(frame: pd.DataFrame) -> pd.DataFrame:
     ]
     if not text_columns:
         return frame
-    needs = [
-        c
-        for c in text_columns
-        if frame[c].map(lambda v: _escape_cell(v) is not v).any()
-    ]
+    needs = [c for c in text_columns if frame[c].map(lambda v: _escape_cell(v) is not v).any()]
     if not needs:
         return frame
     frame = frame.copy()
