@@ -174,41 +174,19 @@ def check_output_targets(folder: Path | str) -> None:
 def check_ensemble_folder(folder: Path | str) -> None:
     """Refuse (ScenarioError) an ensemble folder that pathcast must not write into (see the module's description),
     before anything is solved or written; reads only."""
-    from ..results.folders import OWNER_MARKER
+    from ..results.folders import OWNER_MARKER, refuse_unsafe_target
 
-    shown = str(folder)
-    resolved = Path(os.path.abspath(folder))
-    here = Path.cwd().resolve()
-    if (
-        resolved in {Path(resolved.anchor), Path.home().resolve()}
-        or resolved == here
-        or resolved in here.parents
-    ):
-        raise ScenarioError(
-            f"{shown}: ensemble folder: got the current folder, one of its parents, the home folder or the "
-            "filesystem root; expected a folder of its own for the ensemble (e.g. results/my_ensemble).",
-            file=shown,
-        )
-    if resolved.exists() and not resolved.is_dir():
-        raise ScenarioError(
-            f"{shown}: ensemble folder: got a file; expected a folder (pathcast never replaces a file it did not "
-            "write): choose another --out.",
-            file=shown,
-        )
-    if resolved.is_dir() and not (
-        (resolved / "ensemble.json").is_file() or (resolved / OWNER_MARKER).is_file()
-    ):
-        known = {*ENSEMBLE_ENTRIES, OWNER_MARKER}
-        others = sorted(
-            p.name for p in resolved.iterdir() if p.name not in known and not is_temporary(p.name)
-        )
-        if others:
-            listed = ", ".join(repr(n) for n in others[:3]) + (" ..." if len(others) > 3 else "")
-            raise ScenarioError(
-                f"{shown}: ensemble folder: got a folder that pathcast did not write (it holds {listed}); expected "
-                "a new or empty folder, or one written by 'pathcast ensemble': choose another --out.",
-                file=shown,
-            )
+    known = {*ENSEMBLE_ENTRIES, OWNER_MARKER}
+    refuse_unsafe_target(
+        folder,
+        what="ensemble folder",
+        purpose="the ensemble",
+        example="results/my_ensemble",
+        written_by="'pathcast ensemble'",
+        advice="choose another --out",
+        recognised=lambda path: (path / "ensemble.json").is_file() or (path / OWNER_MARKER).is_file(),
+        ignored=lambda name: name in known or is_temporary(name),
+    )
     check_output_targets(folder)
 
 

@@ -18,6 +18,8 @@ from typing import Any
 
 import numpy as np
 
+from ..results.folders import process_alive
+
 __all__ = [
     "MemberStore",
     "write_json_atomic",
@@ -40,18 +42,6 @@ def is_temporary(name: str) -> bool:
     return _TEMPORARY.match(name) is not None
 
 
-def _alive(pid: int) -> bool:
-    if pid == os.getpid():
-        return True
-    try:
-        os.kill(pid, 0)
-    except ProcessLookupError:
-        return False
-    except (PermissionError, OSError):  # another user's process, or a platform that cannot tell: keep it
-        return True
-    return True
-
-
 def remove_leftovers(folder: Path) -> list[Path]:
     """Delete the temporary files and folders in ``folder`` that a process no longer running left behind; return
     what was removed."""
@@ -61,7 +51,7 @@ def remove_leftovers(folder: Path) -> list[Path]:
         return removed
     for entry in folder.iterdir():
         match = _TEMPORARY.match(entry.name)
-        if match is None or _alive(int(match["pid"])):
+        if match is None or process_alive(int(match["pid"])):
             continue
         if entry.is_dir() and not entry.is_symlink():
             shutil.rmtree(entry, ignore_errors=True)

@@ -23,6 +23,7 @@ import re
 import shutil
 import time
 import uuid
+from collections.abc import Callable
 from pathlib import Path
 from types import TracebackType
 from typing import Literal
@@ -37,6 +38,7 @@ __all__ = [
     "safe_folder_name",
     "is_pathcast_folder",
     "refuse_unsafe_target",
+    "process_alive",
 ]
 
 OWNER_MARKER = ".pathcast-output.json"
@@ -85,44 +87,59 @@ def is_pathcast_folder(folder: Path) -> bool:
     return isinstance(versions, dict) and "pathcast" in versions
 
 
-def refuse_unsafe_target(target: Path) -> None:
-    """Raise ScenarioError when writing ``target`` would replace something pathcast did not write."""
+def refuse_unsafe_target(
+    target: Path | str,
+    *,
+    what: str = "output folder",
+    purpose: str = "pathcast's output",
+    example: str = "results/my_study",
+    written_by: str = "pathcast",
+    advice: str = "choose another output folder",
+    recognised: Callable[[Path], bool] | None = None,
+    ignored: Callable[[str], bool] | None = None,
+) -> None:
+    """Raise ScenarioError when writing ``target`` would replace something pathcast did not write: the current
+    folder, one of its parents, the home folder or the root; a file in the folder's place; a folder that is neither
+    ``recognised`` as pathcast's (default: :func:`is_pathcast_folder`) nor empty (entries ``ignored`` by name do not
+    count). The wording names ``what`` is written, by whom, and what to do instead (``advice``)."""
     shown = str(target)
     resolved = Path(os.path.abspath(target))
     here = Path.cwd().resolve()
     protected = {Path(resolved.anchor), Path.home().resolve()}
     if resolved in protected or resolved == here or resolved in here.parents:
         raise ScenarioError(
-            f"{shown}: output folder: got the current folder, one of its parents, the home folder or the "
-            "filesystem root; expected a folder of its own for pathcast's output (e.g. results/my_study).",
+            f"{shown}: {what}: got the current folder, one of its parents, the home folder or the "
+            f"filesystem root; expected a folder of its own for {purpose} (e.g. {example}).",
             file=shown,
         )
     if resolved.exists() and not resolved.is_dir():
         raise ScenarioError(
-            f"{shown}: output folder: got a file; expected a folder (pathcast never replaces a file it did not "
-            "write): choose another output folder.",
+            f"{shown}: {what}: got a file; expected a folder (pathcast never replaces a file it did not "
+            f"write): {advice}.",
             file=shown,
         )
-    if resolved.is_dir() and not is_pathcast_folder(resolved):
-        others = sorted(p.name for p in resolved.iterdir())
+    if resolved.is_dir() and not (recognised or is_pathcast_folder)(resolved):
+        others = sorted(p.name for p in resolved.iterdir() if not (ignored and ignored(p.name)))
         if others:
             listed = ", ".join(repr(n) for n in others[:3]) + (" ..." if len(others) > 3 else "")
+            move = ", or move its files away yourself" if what == "output folder" else ""
             raise ScenarioError(
-                f"{shown}: output folder: got a folder that pathcast did not write (it holds {listed}); expected "
-                "a new or empty folder, or one written by pathcast: choose another output folder, or move its "
-                "files away yourself.",
+                f"{shown}: {what}: got a folder that pathcast did not write (it holds {listed}); expected "
+                f"a new or empty folder, or one written by {written_by}: {advice}{move}.",
                 file=shown,
             )
 
 
-def _alive(pid: int) -> bool:
+def process_alive(pid: int) -> bool:
+    """Is process ``pid`` still running (so its temporary files are still being written)? Another user's process,
+    or a platform that cannot tell, counts as running: its files are kept."""
     if pid == os.getpid():
         return True
     try:
         os.kill(pid, 0)
     except ProcessLookupError:
         return False
-    except PermissionError:  # another user's process: alive
+    except OSError:  # PermissionError included
         return True
     return True
 
@@ -134,7 +151,7 @@ def _remove_leftovers(target: Path) -> None:
         return
     for entry in parent.iterdir():
         match = _TEMPORARY.match(entry.name)
-        if match and match["name"] == target.name and entry.is_dir() and not _alive(int(match["pid"])):
+        if match and match["name"] == target.name and entry.is_dir() and not process_alive(int(match["pid"])):
             shutil.rmtree(entry, ignore_errors=True)
     old = parent / f".{target.name}.old"
     if old.is_dir() and (is_pathcast_folder(old) or not any(old.iterdir())):
